@@ -1,0 +1,634 @@
+//! Triangulation and refinement: shape loops → planar straight-line graph → spade CDT →
+//! Delaunay refinement with a graded size field.
+//!
+//! Steps:
+//! 1. every loop (outer boundary and shapes) is split by bisection until its segments are at
+//!    most [`SPACING`] × the size field at their ends and midpoint;
+//! 2. points closer than a snap tolerance (1e-9 × domain diagonal) are merged and points
+//!    lying on another loop's segment are threaded into it, so collinear overlapping edges
+//!    become identical constraint chains; remaining crossings are split by spade
+//!    (`add_constraint_and_split`);
+//! 3. regions finer than the background are seeded with a triangular lattice at
+//!    [`SPACING`] × h, kept half a spacing away from every constraint;
+//! 4. spade refines to the angle limit and the background area; then passes insert the
+//!    centroid of every triangle whose longest edge exceeds the size field and refine to the
+//!    angle limit again, until no triangle is too large.
+
+use crate::error::MeshError;
+use crate::geom::{dist2, dist2_point_segment, BBox};
+use crate::grid::{PointGrid, SegGrid};
+use crate::shape::{resolve_all, Domain, DomainKind, RegionGeometry, SPACING};
+use crate::size::SizeField;
+use crate::tag::{tag_faces, Cdt};
+use crate::{BoundaryEdge, Cuts, MeshSpec, Point, Side};
+use spade::handles::FixedVertexHandle;
+use spade::{AngleLimit, Point2, RefinementParameters, Triangulation};
+use std::collections::HashMap;
+
+/// Cap on the size-correction passes (each roughly halves too-large triangles).
+pub const MAX_SIZE_PASSES: usize = 40;
+/// Background refinement area limit, as a fraction of h² (an equilateral triangle of edge
+/// h has 0.433 h²).
+const AREA_FRACTION: f64 = 0.3;
+/// Snap tolerance relative to the domain diagonal.
+pub(crate) const SNAP_REL: f64 = 1e-9;
+
+/// Result of the domain meshing before the image is added and nodes are renumbered.
+pub(crate) struct DomainMesh {
+    pub points: Vec<Point>,
+    pub triangles: Vec<[u32; 3]>,
+    pub tags: Vec<u32>,
+    /// Free edges with their side (Arc included).
+    pub boundary: Vec<BoundaryEdge>,
+}
+
+struct Pslg {
+    pts: Vec<Point>,
+    buckets: HashMap<(i64, i64), Vec<u32>>,
+    cell: f64,
+    tol2: f64,
+    segs: Vec<[u32; 2]>,
+}
+
+impl Pslg {
+    fn new(tol: f64) -> Self {
+        Pslg {
+            pts: Vec::new(),
+            buckets: HashMap::new(),
+            cell: 4.0 * tol,
+            tol2: tol * tol,
+            segs: Vec::new(),
+        }
+    }
+
+    fn key(&self, p: Point) -> (i64, i64) {
+        (
+            (p[0] / self.cell).floor() as i64,
+            (p[1] / self.cell).floor() as i64,
+        )
+    }
+
+    fn add_point(&mut self, p: Point) -> u32 {
+        let (i, j) = self.key(p);
+        for di in -1..=1 {
+            for dj in -1..=1 {
+                if let Some(v) = self.buckets.get(&(i + di, j + dj)) {
+                    for &k in v {
+                        if dist2(self.pts[k as usize], p) <= self.tol2 {
+                            return k;
+                        }
+                    }
+                }
+            }
+        }
+        let k = self.pts.len() as u32;
+        self.pts.push(p);
+        self.buckets.entry((i, j)).or_default().push(k);
+        k
+    }
+
+    fn add_loop(&mut self, pts: &[Point]) {
+        let ids: Vec<u32> = pts.iter().map(|&p| self.add_point(p)).collect();
+        let n = ids.len();
+        for k in 0..n {
+            let (a, b) = (ids[k], ids[(k + 1) % n]);
+            if a != b {
+                self.segs.push([a, b]);
+            }
+        }
+    }
+
+    /// Threads points lying on segments into them and removes duplicate edges.
+    fn finish(&mut self, bbox: BBox) -> Vec<[usize; 2]> {
+        let max_len = self
+            .segs
+            .iter()
+            .map(|s| dist2(self.pts[s[0] as usize], self.pts[s[1] as usize]))
+            .fold(0.0, f64::max)
+            .sqrt();
+        let grid = PointGrid::new(&self.pts, bbox, max_len, 1024);
+        let tol = self.tol2.sqrt();
+        let mut edges: Vec<[usize; 2]> = Vec::with_capacity(self.segs.len());
+        let mut on: Vec<(f64, u32)> = Vec::new();
+        for s in &self.segs {
+            let (a, b) = (self.pts[s[0] as usize], self.pts[s[1] as usize]);
+            let mut bb = BBox::of([&a, &b]);
+            bb.min = [bb.min[0] - tol, bb.min[1] - tol];
+            bb.max = [bb.max[0] + tol, bb.max[1] + tol];
+            on.clear();
+            grid.for_each_in(bb, |v| {
+                let v = v as u32;
+                if v == s[0] || v == s[1] {
+                    return;
+                }
+                let (d2, t) = dist2_point_segment(self.pts[v as usize], a, b);
+                if d2 <= self.tol2 && t > 0.0 && t < 1.0 {
+                    on.push((t, v));
+                }
+            });
+            on.sort_by(|x, y| x.0.total_cmp(&y.0));
+            let mut prev = s[0];
+            for &(_, v) in on.iter().chain(std::iter::once(&(1.0, s[1]))) {
+                if v != prev {
+                    edges.push([prev.min(v) as usize, prev.max(v) as usize]);
+                    prev = v;
+                }
+            }
+        }
+        edges.sort_unstable();
+        edges.dedup();
+        edges
+    }
+}
+
+/// Splits segment a→b by bisection until every piece is at most SPACING·size; `mid` gives
+/// the split point (the chord midpoint, or the arc midpoint for the outer disk).
+fn bisect(
+    a: Point,
+    b: Point,
+    size: &dyn Fn(Point) -> f64,
+    mid: &dyn Fn(Point, Point) -> Point,
+    depth: u32,
+    out: &mut Vec<Point>,
+) {
+    let m = mid(a, b);
+    let len = dist2(a, b).sqrt();
+    let h = size(a).min(size(b)).min(size(m));
+    if depth < 40 && len > SPACING * h {
+        bisect(a, m, size, mid, depth + 1, out);
+        bisect(m, b, size, mid, depth + 1, out);
+    } else {
+        out.push(a);
+    }
+}
+
+fn split_loop(lp: &[Point], size: &dyn Fn(Point) -> f64, arc: Option<(Point, f64)>) -> Vec<Point> {
+    let chord = |a: Point, b: Point| [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
+    let mut out = Vec::with_capacity(lp.len());
+    let n = lp.len();
+    for k in 0..n {
+        let (a, b) = (lp[k], lp[(k + 1) % n]);
+        match arc {
+            Some((c, r)) if is_on_circle(a, c, r) && is_on_circle(b, c, r) => {
+                let on_arc = |p: Point, q: Point| {
+                    let m = chord(p, q);
+                    let d = dist2(m, c).sqrt();
+                    if d > 1e-12 * r {
+                        [c[0] + (m[0] - c[0]) * r / d, c[1] + (m[1] - c[1]) * r / d]
+                    } else {
+                        m
+                    }
+                };
+                bisect(a, b, size, &on_arc, 0, &mut out)
+            }
+            _ => bisect(a, b, size, &chord, 0, &mut out),
+        }
+    }
+    out
+}
+
+fn is_on_circle(p: Point, c: Point, r: f64) -> bool {
+    (dist2(p, c).sqrt() - r).abs() <= 1e-9 * r
+}
+
+/// Intervals of x (sorted, even-odd) where the horizontal line at y is inside the loops.
+fn row_intervals(loops: &[Vec<Point>], y: f64, xs: &mut Vec<f64>) {
+    xs.clear();
+    for lp in loops {
+        let n = lp.len();
+        for i in 0..n {
+            let a = lp[i];
+            let b = lp[(i + 1) % n];
+            if (a[1] > y) != (b[1] > y) {
+                xs.push(a[0] + (y - a[1]) / (b[1] - a[1]) * (b[0] - a[0]));
+            }
+        }
+    }
+    xs.sort_by(f64::total_cmp);
+}
+
+fn in_intervals(xs: &[f64], x: f64) -> bool {
+    // number of crossings left of x is odd
+    xs.partition_point(|&v| v < x) % 2 == 1
+}
+
+/// Triangular lattice seeds at SPACING·h inside the visible part of every fine region.
+fn lattice_seeds(regions: &[RegionGeometry], bg: f64, constraints: &SegGrid) -> Vec<Point> {
+    let mut seeds = Vec::new();
+    let mut xs = Vec::new();
+    let mut later: Vec<(usize, Vec<f64>)> = Vec::new();
+    for (r, g) in regions.iter().enumerate() {
+        if g.max_edge >= bg {
+            continue;
+        }
+        let s = SPACING * g.max_edge;
+        let dy = s * 0.75f64.sqrt();
+        let over: Vec<usize> = (r + 1..regions.len())
+            .filter(|&k| regions[k].bbox.overlaps(&g.bbox))
+            .collect();
+        let rows = ((g.bbox.max[1] - g.bbox.min[1]) / dy).floor() as i64;
+        let cols = ((g.bbox.max[0] - g.bbox.min[0]) / s).ceil() as i64 + 1;
+        for j in 0..=rows {
+            let y = g.bbox.min[1]
+                + 0.5 * ((g.bbox.max[1] - g.bbox.min[1]) - rows as f64 * dy)
+                + j as f64 * dy;
+            row_intervals(&g.loops, y, &mut xs);
+            if xs.is_empty() {
+                continue;
+            }
+            later.clear();
+            for &k in &over {
+                let mut v = Vec::new();
+                row_intervals(&regions[k].loops, y, &mut v);
+                if !v.is_empty() {
+                    later.push((k, v));
+                }
+            }
+            let x0 = g.bbox.min[0] + if j % 2 == 0 { 0.0 } else { 0.5 * s };
+            for i in 0..cols {
+                let x = x0 + i as f64 * s;
+                if !in_intervals(&xs, x) || later.iter().any(|(_, v)| in_intervals(v, x)) {
+                    continue;
+                }
+                let p = [x, y];
+                if constraints.nearest(p, 0.5 * s) < 0.5 * s {
+                    continue;
+                }
+                seeds.push(p);
+            }
+        }
+    }
+    seeds
+}
+
+/// Interleaved bits of quantised coordinates (locality order for insertion).
+fn morton(p: Point, b: &BBox) -> u64 {
+    let q = |v: f64, lo: f64, hi: f64| {
+        (((v - lo) / (hi - lo).max(1e-300)).clamp(0.0, 1.0) * 65535.0) as u64
+    };
+    let spread = |mut x: u64| {
+        x &= 0xffff;
+        x = (x | (x << 8)) & 0x00ff00ff;
+        x = (x | (x << 4)) & 0x0f0f0f0f;
+        x = (x | (x << 2)) & 0x33333333;
+        x = (x | (x << 1)) & 0x55555555;
+        x
+    };
+    spread(q(p[0], b.min[0], b.max[0])) | (spread(q(p[1], b.min[1], b.max[1])) << 1)
+}
+
+fn refine_params(spec: &MeshSpec, budget: usize) -> RefinementParameters<f64> {
+    RefinementParameters::<f64>::new()
+        .with_angle_limit(AngleLimit::from_deg(spec.params.min_angle_deg))
+        .with_max_additional_vertices(budget)
+        .exclude_outer_faces(false)
+}
+
+pub(crate) fn classify_side(a: Point, b: Point, kind: &DomainKind, tol: f64) -> Side {
+    match kind {
+        DomainKind::Rect { min, max } => {
+            let on = |k: usize, v: f64| (a[k] - v).abs() <= tol && (b[k] - v).abs() <= tol;
+            if on(0, min[0]) {
+                Side::Left
+            } else if on(0, max[0]) {
+                Side::Right
+            } else if on(1, min[1]) {
+                Side::Bottom
+            } else {
+                Side::Top
+            }
+        }
+        DomainKind::Disk { center, cuts, .. } => {
+            cut_side(a, b, *center, *cuts, tol).unwrap_or(Side::Arc)
+        }
+    }
+}
+
+/// The cut line side an edge lies on, if any.
+pub(crate) fn cut_side(a: Point, b: Point, c: Point, cuts: Cuts, tol: f64) -> Option<Side> {
+    let on = |k: usize| (a[k] - c[k]).abs() <= tol && (b[k] - c[k]).abs() <= tol;
+    if (cuts.left || cuts.right) && on(0) {
+        Some(if cuts.left { Side::Left } else { Side::Right })
+    } else if (cuts.bottom || cuts.top) && on(1) {
+        Some(if cuts.bottom { Side::Bottom } else { Side::Top })
+    } else {
+        None
+    }
+}
+
+pub(crate) fn mesh_domain(
+    spec: &MeshSpec,
+) -> Result<(Domain, Vec<RegionGeometry>, DomainMesh), MeshError> {
+    let (domain, regions) = resolve_all(spec)?;
+    let bg = spec.background_max_edge;
+    let size = SizeField::new(bg, spec.params.grading, &regions);
+    let scale = domain.bbox.diag();
+    let tol = SNAP_REL * scale;
+
+    // 1-2: split loops, build the PSLG
+    let boundary_size = |p: Point| size.at(None, p);
+    let mut pslg = Pslg::new(tol);
+    let arc = match domain.kind {
+        DomainKind::Disk { center, radius, .. } => Some((center, radius)),
+        DomainKind::Rect { .. } => None,
+    };
+    pslg.add_loop(&split_loop(&domain.boundary, &boundary_size, arc));
+    for g in &regions {
+        for lp in &g.loops {
+            pslg.add_loop(&split_loop(lp, &boundary_size, None));
+        }
+    }
+    let edges = pslg.finish(domain.bbox);
+
+    // 3: lattice seeds away from all constraints
+    let segs: Vec<[Point; 2]> = edges
+        .iter()
+        .map(|e| [pslg.pts[e[0]], pslg.pts[e[1]]])
+        .collect();
+    let min_h = size.min_h();
+    let cgrid = SegGrid::new(segs, domain.bbox, 2.0 * min_h, 1024);
+    let mut seeds = lattice_seeds(&regions, bg, &cgrid);
+    drop(cgrid);
+    seeds.sort_by_key(|p| morton(*p, &domain.bbox));
+    let n_input = pslg.pts.len() + seeds.len();
+
+    let mut vertices: Vec<Point2<f64>> = pslg.pts.iter().map(|p| Point2::new(p[0], p[1])).collect();
+    vertices.extend(seeds.iter().map(|p| Point2::new(p[0], p[1])));
+    let mut conflicts = Vec::new();
+    let mut cdt = Cdt::try_bulk_load_cdt(vertices, edges, |e| conflicts.push(e))
+        .map_err(|_| MeshError::Insertion)?;
+    if cdt.num_vertices() != n_input {
+        return Err(MeshError::Insertion);
+    }
+    for [a, b] in conflicts {
+        cdt.add_constraint_and_split(
+            FixedVertexHandle::from_index(a),
+            FixedVertexHandle::from_index(b),
+            |p| p,
+        );
+    }
+
+    // budget: generous estimate of the final vertex count
+    let mut est = domain.bbox.diag().powi(2) / (AREA_FRACTION * bg * bg);
+    for g in &regions {
+        let b = g.bbox;
+        est += (b.max[0] - b.min[0]) * (b.max[1] - b.min[1])
+            / (AREA_FRACTION * g.max_edge * g.max_edge);
+    }
+    let budget = ((est * 20.0).min(4e9) as usize).max(1_000_000);
+
+    // 4: refinement
+    let res =
+        cdt.refine(refine_params(spec, budget).with_max_allowed_area(AREA_FRACTION * bg * bg));
+    if !res.refinement_complete {
+        return Err(MeshError::RefinementIncomplete {
+            stage: "initial",
+            vertices: cdt.num_vertices(),
+        });
+    }
+    let mut tags;
+    let mut pass = 0;
+    loop {
+        tags = tag_faces(&cdt, &regions);
+        let mut bad: Vec<Point> = Vec::new();
+        for f in cdt.inner_faces() {
+            let t = tags[f.fix().index()];
+            let [p0, p1, p2] = f.positions();
+            let le2 = (p0.x - p1.x).powi(2) + (p0.y - p1.y).powi(2);
+            let le2 = le2.max((p1.x - p2.x).powi(2) + (p1.y - p2.y).powi(2));
+            let le2 = le2.max((p2.x - p0.x).powi(2) + (p2.y - p0.y).powi(2));
+            let c = [(p0.x + p1.x + p2.x) / 3.0, (p0.y + p1.y + p2.y) / 3.0];
+            let lb = size.lower_bound(t, c);
+            if le2 <= lb * lb {
+                continue;
+            }
+            let h = size.at(Some(t), c);
+            if le2 > h * h {
+                bad.push(c);
+            }
+        }
+        if bad.is_empty() {
+            break;
+        }
+        pass += 1;
+        if pass > MAX_SIZE_PASSES {
+            return Err(MeshError::RefinementIncomplete {
+                stage: "size passes",
+                vertices: cdt.num_vertices(),
+            });
+        }
+        bad.sort_by_key(|p| morton(*p, &domain.bbox));
+        for p in bad {
+            cdt.insert(Point2::new(p[0], p[1]))
+                .map_err(|_| MeshError::Insertion)?;
+        }
+        let res = cdt.refine(refine_params(spec, budget));
+        if !res.refinement_complete {
+            return Err(MeshError::RefinementIncomplete {
+                stage: "size pass",
+                vertices: cdt.num_vertices(),
+            });
+        }
+    }
+
+    // extraction
+    let points: Vec<Point> = cdt
+        .vertices()
+        .map(|v| [v.position().x, v.position().y])
+        .collect();
+    let mut triangles = Vec::with_capacity(cdt.num_inner_faces());
+    let mut ftags = Vec::with_capacity(cdt.num_inner_faces());
+    for f in cdt.inner_faces() {
+        let v = f.vertices();
+        triangles.push([
+            v[0].fix().index() as u32,
+            v[1].fix().index() as u32,
+            v[2].fix().index() as u32,
+        ]);
+        ftags.push(tags[f.fix().index()]);
+    }
+    let mut boundary = Vec::new();
+    for e in cdt.convex_hull() {
+        let (a, b) = (e.from(), e.to());
+        let (pa, pb) = (a.position(), b.position());
+        let side = classify_side([pa.x, pa.y], [pb.x, pb.y], &domain.kind, tol * 10.0);
+        boundary.push(BoundaryEdge {
+            nodes: [a.fix().index() as u32, b.fix().index() as u32],
+            side,
+        });
+    }
+    let mut points = points;
+    if let DomainKind::Disk { center, radius, .. } = domain.kind {
+        project_arc_nodes(&mut points, &triangles, &boundary, center, radius);
+    }
+    Ok((
+        domain,
+        regions,
+        DomainMesh {
+            points,
+            triangles,
+            tags: ftags,
+            boundary,
+        },
+    ))
+}
+
+/// Moves arc nodes that refinement placed on chords (segment midpoints) out onto the circle,
+/// so every arc node satisfies |x - c| = R (what the inversion of the exterior assumes).
+/// Reverted if any triangle would lose its orientation.
+fn project_arc_nodes(
+    points: &mut [Point],
+    triangles: &[[u32; 3]],
+    boundary: &[BoundaryEdge],
+    c: Point,
+    r: f64,
+) {
+    let saved: Vec<(usize, Point)> = boundary
+        .iter()
+        .filter(|e| e.side == Side::Arc)
+        .flat_map(|e| e.nodes)
+        .map(|v| (v as usize, points[v as usize]))
+        .collect();
+    for &(v, p) in &saved {
+        let d = dist2(p, c).sqrt();
+        if d > 0.0 {
+            points[v] = [c[0] + (p[0] - c[0]) * r / d, c[1] + (p[1] - c[1]) * r / d];
+        }
+    }
+    let ok = triangles.iter().all(|t| {
+        crate::geom::triangle_area(
+            points[t[0] as usize],
+            points[t[1] as usize],
+            points[t[2] as usize],
+        ) > 0.0
+    });
+    if !ok {
+        for &(v, p) in &saved {
+            points[v] = p;
+        }
+    }
+}
+
+/// Builds the exterior image sector glued to the domain's arc; returns the image part
+/// (points, triangles, cut boundary edges with local indices, and the local index of each
+/// arc node in the same order as `arc_nodes`).
+pub(crate) struct ImagePart {
+    pub points: Vec<Point>,
+    pub triangles: Vec<[u32; 3]>,
+    pub boundary: Vec<BoundaryEdge>,
+}
+
+pub(crate) fn image_offset(radius: f64, cuts: Cuts) -> Point {
+    if cuts.left {
+        [0.0, 2.2 * radius]
+    } else {
+        [2.2 * radius, 0.0]
+    }
+}
+
+/// `arc` = domain arc node positions in counter-clockwise order (first and last on the cut
+/// lines when there are cuts). The image reuses them (translated) as its first nodes.
+pub(crate) fn mesh_image(
+    spec: &MeshSpec,
+    center: Point,
+    radius: f64,
+    cuts: Cuts,
+    arc: &[Point],
+    offset: Point,
+) -> Result<ImagePart, MeshError> {
+    let full = !(cuts.left || cuts.right || cuts.bottom || cuts.top);
+    let n = arc.len();
+    let mut perim = 0.0;
+    for k in 0..n - 1 {
+        perim += dist2(arc[k], arc[k + 1]).sqrt();
+    }
+    if full {
+        perim += dist2(arc[n - 1], arc[0]).sqrt();
+    }
+    let h = perim / if full { n } else { n - 1 } as f64;
+    let c2 = [center[0] + offset[0], center[1] + offset[1]];
+    let mut pts: Vec<Point> = arc
+        .iter()
+        .map(|p| [p[0] + offset[0], p[1] + offset[1]])
+        .collect();
+    let mut edges: Vec<[usize; 2]> = (0..n - 1).map(|k| [k, k + 1]).collect();
+    if full {
+        edges.push([n - 1, 0]);
+        pts.push(c2);
+    } else {
+        let ic = pts.len();
+        pts.push(c2);
+        let m = ((radius / h).ceil() as usize).max(1);
+        // cut lines from the centre to both arc ends (a half disk's line goes through it)
+        for &end in &[0usize, n - 1] {
+            let d = [arc[end][0] - center[0], arc[end][1] - center[1]];
+            let mut prev = ic;
+            for k in 1..m {
+                let t = k as f64 / m as f64;
+                let p = [c2[0] + t * d[0], c2[1] + t * d[1]];
+                pts.push(p);
+                edges.push([prev, pts.len() - 1]);
+                prev = pts.len() - 1;
+            }
+            edges.push([prev, end]);
+        }
+    }
+    let vertices: Vec<Point2<f64>> = pts.iter().map(|p| Point2::new(p[0], p[1])).collect();
+    let nv = vertices.len();
+    let mut cdt = Cdt::bulk_load_cdt(vertices, edges).map_err(|_| MeshError::Insertion)?;
+    if cdt.num_vertices() != nv {
+        return Err(MeshError::Insertion);
+    }
+    let res = cdt.refine(
+        refine_params(spec, 50 * nv + 100_000)
+            .keep_constraint_edges()
+            .with_max_allowed_area(AREA_FRACTION * h * h),
+    );
+    if !res.refinement_complete {
+        return Err(MeshError::RefinementIncomplete {
+            stage: "image",
+            vertices: cdt.num_vertices(),
+        });
+    }
+    let points: Vec<Point> = cdt
+        .vertices()
+        .map(|v| [v.position().x, v.position().y])
+        .collect();
+    let triangles = cdt
+        .inner_faces()
+        .map(|f| {
+            let v = f.vertices();
+            [
+                v[0].fix().index() as u32,
+                v[1].fix().index() as u32,
+                v[2].fix().index() as u32,
+            ]
+        })
+        .collect();
+    let tol = 10.0 * SNAP_REL * radius;
+    let mut boundary = Vec::new();
+    let mut arc_edges = 0;
+    for e in cdt.convex_hull() {
+        let (a, b) = (e.from(), e.to());
+        let (pa, pb) = (a.position(), b.position());
+        match cut_side([pa.x, pa.y], [pb.x, pb.y], c2, cuts, tol) {
+            Some(side) => boundary.push(BoundaryEdge {
+                nodes: [a.fix().index() as u32, b.fix().index() as u32],
+                side,
+            }),
+            None => arc_edges += 1,
+        }
+    }
+    let expect = if full { n } else { n - 1 };
+    if arc_edges != expect {
+        return Err(MeshError::RefinementIncomplete {
+            stage: "image arc changed",
+            vertices: cdt.num_vertices(),
+        });
+    }
+    Ok(ImagePart {
+        points,
+        triangles,
+        boundary,
+    })
+}

@@ -1,0 +1,505 @@
+//! Polygonisation of shapes and of the outer boundary, clipping at the axis, validation.
+//!
+//! Curves are replaced by polygons whose edges are at most [`SPACING`] times the local
+//! largest edge, with at least [`MIN_CURVE_SEGMENTS`] segments per full turn. Circles,
+//! ellipses and annulus rings are placed on a slightly larger, *area-equivalent* polygon so
+//! that the polygon area equals the exact area (πr², πab) up to rounding. The outer disk is
+//! the exception: its arc nodes lie exactly on the circle (the exterior image relies on
+//! |x - c| = R at the glued nodes).
+
+use crate::error::MeshError;
+use crate::geom::{polygon_area, segments_touch, BBox};
+use crate::{Cuts, MeshSpec, Outer, Point, Shape};
+use std::f64::consts::PI;
+
+/// Fewest segments used for a full circle or ellipse, however small (keeps them round:
+/// the chord sagitta is then at most 1 - cos(π/24) = 0.86 % of the radius).
+pub const MIN_CURVE_SEGMENTS: usize = 24;
+
+/// Boundary points are spaced at most this fraction of the local largest edge.
+pub const SPACING: f64 = 0.85;
+
+/// A region's polygonised (and, with `clip_at_axis`, clipped) shape: closed loops, the
+/// region being the points inside an odd number of them.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RegionGeometry {
+    pub loops: Vec<Vec<Point>>,
+    pub bbox: BBox,
+    /// Largest edge inside (the background size when the input gave none).
+    pub max_edge: f64,
+}
+
+impl RegionGeometry {
+    /// Is `p` inside (even-odd over the loops)?
+    pub fn contains(&self, p: Point) -> bool {
+        self.bbox.contains(p) && crate::geom::point_in_loops(p, &self.loops)
+    }
+
+    /// Area of the polygonised shape (before later shapes are drawn over it).
+    pub fn area(&self) -> f64 {
+        // loops of one shape are nested (annulus) or disjoint pieces: sum of |area| with the
+        // sign given by nesting depth parity
+        let mut a = 0.0;
+        for (i, lp) in self.loops.iter().enumerate() {
+            let depth = self
+                .loops
+                .iter()
+                .enumerate()
+                .filter(|(j, o)| {
+                    *j != i && crate::geom::point_in_loops(lp[0], std::slice::from_ref(o))
+                })
+                .count();
+            let s = polygon_area(lp).abs();
+            a += if depth % 2 == 0 { s } else { -s };
+        }
+        a
+    }
+}
+
+/// The resolved outer boundary (after clipping at the axis).
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) enum DomainKind {
+    Rect {
+        min: Point,
+        max: Point,
+    },
+    Disk {
+        center: Point,
+        radius: f64,
+        cuts: Cuts,
+    },
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) struct Domain {
+    pub kind: DomainKind,
+    /// Counter-clockwise convex loop.
+    pub boundary: Vec<Point>,
+    pub bbox: BBox,
+}
+
+impl Shape {
+    /// Exact area of the analytic shape (not clipped, not polygonised): πr², πab,
+    /// π(r1² - r0²), w·h, or the shoelace area of the polygon.
+    pub fn exact_area(&self) -> f64 {
+        match self {
+            Shape::Rect { min, max } => (max[0] - min[0]) * (max[1] - min[1]),
+            Shape::Circle { radius, .. } => PI * radius * radius,
+            Shape::Ellipse { semi_axes, .. } => PI * semi_axes[0] * semi_axes[1],
+            Shape::Annulus { inner, outer, .. } => PI * (outer * outer - inner * inner),
+            Shape::Polygon(p) => polygon_area(p).abs(),
+        }
+    }
+}
+
+fn finite(p: Point) -> bool {
+    p[0].is_finite() && p[1].is_finite()
+}
+
+fn pos(x: f64) -> bool {
+    x.is_finite() && x > 0.0
+}
+
+/// Segment count for a closed curve whose largest chord is about `2π r_max / n`.
+fn curve_segments(r_max: f64, h: f64) -> usize {
+    let n = (2.0 * PI * r_max / (SPACING * h)).ceil();
+    if n.is_finite() {
+        (n as usize).clamp(MIN_CURVE_SEGMENTS, 1 << 22)
+    } else {
+        MIN_CURVE_SEGMENTS
+    }
+}
+
+/// Ellipse (or circle) polygon with the exact area, counter-clockwise.
+fn ellipse_loop(c: Point, a: f64, b: f64, h: f64) -> Vec<Point> {
+    let n = curve_segments(a.max(b), h);
+    let step = 2.0 * PI / n as f64;
+    // polygon at uniform parameter has area n/2 a b sin(2π/n): scale to πab
+    let s = (2.0 * PI / (n as f64 * step.sin())).sqrt();
+    (0..n)
+        .map(|k| {
+            let u = unit(k as f64 * step);
+            [c[0] + s * a * u[0], c[1] + s * b * u[1]]
+        })
+        .collect()
+}
+
+fn validate_polygon(region: usize, p: &[Point]) -> Result<(), MeshError> {
+    if p.len() < 3 {
+        return Err(MeshError::DegenerateShape {
+            region,
+            reason: "polygon with fewer than 3 points",
+        });
+    }
+    if !p.iter().all(|&q| finite(q)) {
+        return Err(MeshError::DegenerateShape {
+            region,
+            reason: "non-finite coordinate",
+        });
+    }
+    let n = p.len();
+    let scale = BBox::of(p).diag();
+    if !(polygon_area(p).abs() > 1e-12 * scale * scale) {
+        return Err(MeshError::DegenerateShape {
+            region,
+            reason: "polygon without area",
+        });
+    }
+    for i in 0..n {
+        if p[i] == p[(i + 1) % n] {
+            return Err(MeshError::DegenerateShape {
+                region,
+                reason: "repeated polygon point",
+            });
+        }
+    }
+    // O(n²) with a bounding-box prefilter: polygons given by hand are small
+    let bbs: Vec<BBox> = (0..n).map(|i| BBox::of([&p[i], &p[(i + 1) % n]])).collect();
+    for i in 0..n {
+        for j in i + 1..n {
+            let adjacent = j == i + 1 || (i == 0 && j == n - 1);
+            if !bbs[i].overlaps(&bbs[j]) {
+                continue;
+            }
+            let (a, b) = (p[i], p[(i + 1) % n]);
+            let (c, d) = (p[j], p[(j + 1) % n]);
+            if adjacent {
+                // adjacent edges share one end; they must not fold back onto each other
+                let (shared, other_i, other_j) = if j == i + 1 { (b, a, d) } else { (a, b, c) };
+                let o = crate::geom::cross(shared, other_i, other_j);
+                let u = crate::geom::sub(other_i, shared);
+                let v = crate::geom::sub(other_j, shared);
+                if o == 0.0 && u[0] * v[0] + u[1] * v[1] > 0.0 {
+                    return Err(MeshError::SelfIntersecting {
+                        region,
+                        first: i,
+                        second: j,
+                    });
+                }
+            } else if segments_touch(a, b, c, d) {
+                return Err(MeshError::SelfIntersecting {
+                    region,
+                    first: i,
+                    second: j,
+                });
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Polygonise one region's shape at largest edge `h` (validated; not clipped).
+pub(crate) fn polygonise(
+    region: usize,
+    shape: &Shape,
+    h: f64,
+) -> Result<Vec<Vec<Point>>, MeshError> {
+    let bad = |reason| Err(MeshError::DegenerateShape { region, reason });
+    match shape {
+        Shape::Rect { min, max } => {
+            if !finite(*min) || !finite(*max) {
+                return bad("non-finite coordinate");
+            }
+            if !(max[0] > min[0] && max[1] > min[1]) {
+                return bad("rectangle with max <= min");
+            }
+            Ok(vec![vec![*min, [max[0], min[1]], *max, [min[0], max[1]]]])
+        }
+        Shape::Circle { center, radius } => {
+            if !finite(*center) {
+                return bad("non-finite coordinate");
+            }
+            if !pos(*radius) {
+                return bad("radius must be positive and finite");
+            }
+            Ok(vec![ellipse_loop(*center, *radius, *radius, h)])
+        }
+        Shape::Ellipse { center, semi_axes } => {
+            if !finite(*center) {
+                return bad("non-finite coordinate");
+            }
+            if !pos(semi_axes[0]) || !pos(semi_axes[1]) {
+                return bad("semi-axes must be positive and finite");
+            }
+            Ok(vec![ellipse_loop(*center, semi_axes[0], semi_axes[1], h)])
+        }
+        Shape::Annulus {
+            center,
+            inner,
+            outer,
+        } => {
+            if !finite(*center) {
+                return bad("non-finite coordinate");
+            }
+            if !pos(*inner) || !pos(*outer) || inner >= outer {
+                return bad("annulus needs 0 < inner < outer");
+            }
+            Ok(vec![
+                ellipse_loop(*center, *outer, *outer, h),
+                ellipse_loop(*center, *inner, *inner, h),
+            ])
+        }
+        Shape::Polygon(p) => {
+            validate_polygon(region, p)?;
+            let mut q = p.clone();
+            if polygon_area(&q) < 0.0 {
+                q.reverse();
+            }
+            Ok(vec![q])
+        }
+    }
+}
+
+/// Sutherland–Hodgman clip of a closed loop to x >= 0. Points on the axis get x = 0 exactly.
+pub(crate) fn clip_loop_at_axis(lp: &[Point]) -> Vec<Point> {
+    let n = lp.len();
+    let mut out = Vec::with_capacity(n + 2);
+    for i in 0..n {
+        let a = lp[i];
+        let b = lp[(i + 1) % n];
+        let ina = a[0] >= 0.0;
+        let inb = b[0] >= 0.0;
+        if ina {
+            out.push(a);
+        }
+        if ina != inb && a[0] != 0.0 && b[0] != 0.0 {
+            let t = a[0] / (a[0] - b[0]);
+            out.push([0.0, a[1] + t * (b[1] - a[1])]);
+        }
+    }
+    out.dedup();
+    while out.len() > 1 && out.first() == out.last() {
+        out.pop();
+    }
+    out
+}
+
+/// cos/sin that are exact at multiples of 90°.
+pub(crate) fn unit(theta: f64) -> Point {
+    let q = theta / (0.5 * PI);
+    let r = q.round();
+    if (q - r).abs() < 1e-12 {
+        match (r as i64).rem_euclid(4) {
+            0 => [1.0, 0.0],
+            1 => [0.0, 1.0],
+            2 => [-1.0, 0.0],
+            _ => [0.0, -1.0],
+        }
+    } else {
+        [theta.cos(), theta.sin()]
+    }
+}
+
+/// Angular range [start, end] of the arc kept by the cuts (counter-clockwise).
+pub(crate) fn arc_range(c: Cuts) -> (f64, f64) {
+    match (c.left, c.right, c.bottom, c.top) {
+        (false, false, false, false) => (0.0, 2.0 * PI),
+        (true, false, false, false) => (-0.5 * PI, 0.5 * PI),
+        (false, true, false, false) => (0.5 * PI, 1.5 * PI),
+        (false, false, true, false) => (0.0, PI),
+        (false, false, false, true) => (PI, 2.0 * PI),
+        (true, false, true, false) => (0.0, 0.5 * PI),
+        (false, true, true, false) => (0.5 * PI, PI),
+        (false, true, false, true) => (PI, 1.5 * PI),
+        _ => (1.5 * PI, 2.0 * PI), // left + top
+    }
+}
+
+pub(crate) fn resolve_domain(spec: &MeshSpec) -> Result<Domain, MeshError> {
+    let h = spec.background_max_edge;
+    match &spec.outer {
+        Outer::Rect { min, max } => {
+            if !finite(*min) || !finite(*max) {
+                return Err(MeshError::BadDomain {
+                    reason: "non-finite coordinate",
+                });
+            }
+            let mut min = *min;
+            if spec.clip_at_axis && min[0] < 0.0 {
+                min[0] = 0.0;
+            }
+            if !(max[0] > min[0] && max[1] > min[1]) {
+                return Err(MeshError::BadDomain {
+                    reason: "rectangle with max <= min (after clipping at the axis)",
+                });
+            }
+            let boundary = vec![min, [max[0], min[1]], *max, [min[0], max[1]]];
+            Ok(Domain {
+                kind: DomainKind::Rect { min, max: *max },
+                bbox: BBox::of(&boundary),
+                boundary,
+            })
+        }
+        Outer::Disk {
+            center,
+            radius,
+            cuts,
+        } => {
+            if !finite(*center) || !pos(*radius) {
+                return Err(MeshError::BadDomain {
+                    reason: "disk needs a finite centre and a positive radius",
+                });
+            }
+            if (cuts.left && cuts.right) || (cuts.bottom && cuts.top) {
+                return Err(MeshError::BadDomain {
+                    reason: "opposite cuts (left+right or bottom+top)",
+                });
+            }
+            let mut cuts = *cuts;
+            let r = *radius;
+            if spec.clip_at_axis {
+                if center[0] == 0.0 {
+                    if cuts.right {
+                        return Err(MeshError::BadDomain {
+                            reason: "right cut on the axis leaves nothing at x >= 0",
+                        });
+                    }
+                    cuts.left = true;
+                } else if center[0] - r < 0.0 {
+                    return Err(MeshError::BadDomain {
+                        reason: "disk crosses the axis off its centre",
+                    });
+                }
+            }
+            let (t0, t1) = arc_range(cuts);
+            let full = !(cuts.left || cuts.right || cuts.bottom || cuts.top);
+            let span = t1 - t0;
+            let n_full = curve_segments(r, h);
+            let n =
+                ((n_full as f64 * span / (2.0 * PI)).ceil() as usize).max(MIN_CURVE_SEGMENTS / 4);
+            let mut boundary = Vec::with_capacity(n + 2);
+            let count = if full { n } else { n + 1 };
+            for k in 0..count {
+                let t = if k == n {
+                    t1
+                } else {
+                    t0 + span * k as f64 / n as f64
+                };
+                let u = unit(t);
+                boundary.push([center[0] + r * u[0], center[1] + r * u[1]]);
+            }
+            if !full {
+                // back through the centre (a vertex of the cut lines)
+                boundary.push(*center);
+            }
+            Ok(Domain {
+                kind: DomainKind::Disk {
+                    center: *center,
+                    radius: r,
+                    cuts,
+                },
+                bbox: BBox::of(&boundary),
+                boundary,
+            })
+        }
+    }
+}
+
+/// Polygonise and clip every region (index = region id - 1) and resolve the domain.
+/// This is what the mesh is built from, and what [`crate::expected_region_areas`] measures.
+pub fn region_geometries(spec: &MeshSpec) -> Result<Vec<RegionGeometry>, MeshError> {
+    Ok(resolve_all(spec)?.1)
+}
+
+pub(crate) fn validate_spec(spec: &MeshSpec) -> Result<(), MeshError> {
+    if !pos(spec.background_max_edge) {
+        return Err(MeshError::BadParameter {
+            what: "background_max_edge",
+            reason: "must be positive and finite",
+        });
+    }
+    let a = spec.params.min_angle_deg;
+    if !(a.is_finite() && (0.0..=34.0).contains(&a)) {
+        return Err(MeshError::BadParameter {
+            what: "min_angle_deg",
+            reason: "must be within 0..=34 degrees",
+        });
+    }
+    let g = spec.params.grading;
+    if !(g.is_finite() && g > 1.0 && g <= 10.0) {
+        return Err(MeshError::BadParameter {
+            what: "grading",
+            reason: "must be in (1, 10]",
+        });
+    }
+    if spec.exterior_image && !matches!(spec.outer, Outer::Disk { .. }) {
+        return Err(MeshError::ImageNeedsDisk);
+    }
+    Ok(())
+}
+
+pub(crate) fn resolve_all(spec: &MeshSpec) -> Result<(Domain, Vec<RegionGeometry>), MeshError> {
+    validate_spec(spec)?;
+    let domain = resolve_domain(spec)?;
+    let scale = domain.bbox.diag();
+    let tol = 1e-9 * scale;
+    let mut out = Vec::with_capacity(spec.regions.len());
+    for (i, r) in spec.regions.iter().enumerate() {
+        let h = match r.max_edge {
+            Some(h) if pos(h) => h,
+            Some(_) => {
+                return Err(MeshError::DegenerateShape {
+                    region: i,
+                    reason: "max_edge must be positive and finite",
+                })
+            }
+            None => spec.background_max_edge,
+        };
+        let mut loops = polygonise(i, &r.shape, h)?;
+        if spec.clip_at_axis {
+            loops = loops
+                .iter()
+                .map(|l| clip_loop_at_axis(l))
+                .filter(|l| l.len() >= 3 && polygon_area(l).abs() > 1e-12 * scale * scale)
+                .collect();
+            if loops.is_empty() {
+                return Err(MeshError::RegionBeyondAxis { region: i });
+            }
+        }
+        // inside the domain (tolerance tol); snap near-boundary points of a rect domain onto it
+        for lp in loops.iter_mut() {
+            for p in lp.iter_mut() {
+                match &domain.kind {
+                    DomainKind::Rect { min, max } => {
+                        for k in 0..2 {
+                            if p[k] < min[k] - tol || p[k] > max[k] + tol {
+                                return Err(MeshError::ShapeOutsideDomain { region: i });
+                            }
+                            // on (or within tol of) a side: exactly on it
+                            if (p[k] - min[k]).abs() <= tol {
+                                p[k] = min[k];
+                            } else if (p[k] - max[k]).abs() <= tol {
+                                p[k] = max[k];
+                            }
+                        }
+                    }
+                    DomainKind::Disk { center, cuts, .. } => {
+                        if (cuts.left || cuts.right) && (p[0] - center[0]).abs() <= tol {
+                            p[0] = center[0];
+                        }
+                        if (cuts.bottom || cuts.top) && (p[1] - center[1]).abs() <= tol {
+                            p[1] = center[1];
+                        }
+                        let b = &domain.boundary;
+                        let n = b.len();
+                        for k in 0..n {
+                            let (a, c) = (b[k], b[(k + 1) % n]);
+                            let len = crate::geom::dist2(a, c).sqrt();
+                            if crate::geom::cross(a, c, *p) < -tol * len {
+                                return Err(MeshError::ShapeOutsideDomain { region: i });
+                            }
+                        }
+                    }
+                }
+            }
+            lp.dedup();
+        }
+        let bbox = loops.iter().fold(BBox::EMPTY, |b, l| b.union(&BBox::of(l)));
+        out.push(RegionGeometry {
+            loops,
+            bbox,
+            max_edge: h,
+        });
+    }
+    Ok((domain, out))
+}

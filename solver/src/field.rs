@@ -1,0 +1,228 @@
+//! A solved potential on a discretisation: evaluation of A and B anywhere in the domain.
+
+use std::sync::Arc;
+
+use crate::discretisation::{Discretisation, Order};
+use crate::element::{b_from_curl, point_basis, Basis, Geometry, Reluctivity, P1, P2};
+use crate::quadrature::QuadPoint;
+use crate::Formulation;
+
+/// Uniform-grid bucket index of the physical cells (the exterior image is left out).
+#[derive(Debug)]
+pub struct Locator {
+    min: [f64; 2],
+    cell_size: [f64; 2],
+    dims: [usize; 2],
+    start: Vec<u32>,
+    items: Vec<u32>,
+}
+
+impl Locator {
+    pub fn new(d: &Discretisation) -> Self {
+        let cells: Vec<usize> = (0..d.n_cells()).filter(|&c| !d.is_image(c)).collect();
+        let mut min = [f64::INFINITY; 2];
+        let mut max = [f64::NEG_INFINITY; 2];
+        for &c in &cells {
+            for p in d.vertices(c) {
+                for k in 0..2 {
+                    min[k] = min[k].min(p[k]);
+                    max[k] = max[k].max(p[k]);
+                }
+            }
+        }
+        let n = (cells.len() as f64).sqrt().ceil().max(1.0) as usize;
+        let dims = [n, n];
+        let span = [(max[0] - min[0]).max(1e-300), (max[1] - min[1]).max(1e-300)];
+        let cell_size = [span[0] / n as f64, span[1] / n as f64];
+        let bucket = |x: f64, k: usize| -> usize {
+            (((x - min[k]) / cell_size[k]).floor().max(0.0) as usize).min(dims[k] - 1)
+        };
+        let mut lists: Vec<Vec<u32>> = vec![Vec::new(); n * n];
+        for &c in &cells {
+            let v = d.vertices(c);
+            let lo = [0, 1].map(|k| v.iter().map(|p| p[k]).fold(f64::INFINITY, f64::min));
+            let hi = [0, 1].map(|k| v.iter().map(|p| p[k]).fold(f64::NEG_INFINITY, f64::max));
+            for i in bucket(lo[0], 0)..=bucket(hi[0], 0) {
+                for j in bucket(lo[1], 1)..=bucket(hi[1], 1) {
+                    lists[j * n + i].push(c as u32);
+                }
+            }
+        }
+        let mut start = vec![0u32];
+        let mut items = Vec::new();
+        for l in lists {
+            items.extend(l);
+            start.push(items.len() as u32);
+        }
+        Locator {
+            min,
+            cell_size,
+            dims,
+            start,
+            items,
+        }
+    }
+
+    /// The cell containing `p` and its barycentric coordinates, if `p` is in the domain.
+    pub fn locate(&self, d: &Discretisation, p: [f64; 2]) -> Option<(usize, [f64; 3])> {
+        let i = ((p[0] - self.min[0]) / self.cell_size[0]).floor();
+        let j = ((p[1] - self.min[1]) / self.cell_size[1]).floor();
+        let tol = 1e-9;
+        let ok = |v: f64, n: usize| v >= -1.0 && v <= n as f64;
+        if !ok(i, self.dims[0]) || !ok(j, self.dims[1]) {
+            return None;
+        }
+        let i = (i.max(0.0) as usize).min(self.dims[0] - 1);
+        let j = (j.max(0.0) as usize).min(self.dims[1] - 1);
+        let b = j * self.dims[0] + i;
+        let mut best: Option<(usize, [f64; 3], f64)> = None;
+        for &c in &self.items[self.start[b] as usize..self.start[b + 1] as usize] {
+            let g = Geometry::new(d.vertices(c as usize));
+            let l = g.barycentric(p);
+            let worst = l.iter().copied().fold(f64::INFINITY, f64::min);
+            if worst >= -tol {
+                return Some((c as usize, l));
+            }
+            if best.as_ref().is_none_or(|b| worst > b.2) {
+                best = Some((c as usize, l, worst));
+            }
+        }
+        // tolerate points a hair outside (on a boundary, round-off)
+        best.filter(|b| b.2 > -1e-6).map(|b| (b.0, b.1))
+    }
+}
+
+/// A potential on all nodes: the total A (applied + reaction) in the physical domain; in
+/// the exterior image only the reaction part, in image coordinates.
+#[derive(Clone, Debug)]
+pub struct Field {
+    pub disc: Arc<Discretisation>,
+    pub locator: Arc<Locator>,
+    /// Reluctivity law per region id (the image region's is the Kelvin law).
+    pub nu: Arc<Vec<Reluctivity>>,
+    pub a: Vec<f64>,
+}
+
+/// Value and flux density at one point of a cell.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct PointValue {
+    pub x: [f64; 2],
+    pub a: f64,
+    pub b: [f64; 2],
+    /// Volume weight: 1 (planar, per metre of depth) or 2πr (axisymmetric).
+    pub weight: f64,
+}
+
+impl Field {
+    pub fn formulation(&self) -> Formulation {
+        self.disc.formulation
+    }
+
+    /// A and B at barycentric point `l` of cell `c`.
+    pub fn at_cell(&self, c: usize, l: [f64; 3]) -> PointValue {
+        match self.disc.order {
+            Order::Linear => self.eval::<3, P1>(c, l),
+            Order::Quadratic => self.eval::<6, P2>(c, l),
+        }
+    }
+
+    fn eval<const N: usize, B: Basis<N>>(&self, c: usize, l: [f64; 3]) -> PointValue {
+        let d = &*self.disc;
+        let g = Geometry::new(d.vertices(c));
+        let f = d.formulation;
+        // On the axis the A/r term is a limit: evaluate a hair inside.
+        let pb = point_basis::<N, B>(&g, l, f);
+        let nodes = d.cell(c);
+        let mut a = 0.0;
+        let mut curl = [0.0; 2];
+        for i in 0..N {
+            let ai = self.a[nodes[i] as usize];
+            a += ai * pb.n[i];
+            curl[0] += ai * pb.c[i][0];
+            curl[1] += ai * pb.c[i][1];
+        }
+        let b = if f == Formulation::Axisymmetric && pb.x[0] <= 0.0 {
+            // r = 0: B_z = 2 ∂A/∂r (A ≈ r ∂A/∂r), B_r = -∂A/∂z = 0 on the axis.
+            let grad = g.gradients::<N, B>(l);
+            let dadr: f64 = (0..N).map(|i| self.a[nodes[i] as usize] * grad[i][0]).sum();
+            [0.0, 2.0 * dadr]
+        } else {
+            b_from_curl(curl, f)
+        };
+        PointValue {
+            x: pb.x,
+            a,
+            b,
+            weight: pb.weight,
+        }
+    }
+
+    /// A and B at a point of the domain (None outside).
+    pub fn at(&self, p: [f64; 2]) -> Option<PointValue> {
+        self.locator
+            .locate(&self.disc, p)
+            .map(|(c, l)| self.at_cell(c, l))
+    }
+
+    /// Flux density at the centroid of cell `c`.
+    pub fn cell_b(&self, c: usize) -> [f64; 2] {
+        self.at_cell(c, [1.0 / 3.0; 3]).b
+    }
+
+    /// Calls `f(value, dV)` at each quadrature point of cell `c`; dV includes the area,
+    /// the rule's weight and the volume weight.
+    pub fn quadrature(&self, c: usize, rule: &[QuadPoint], mut f: impl FnMut(&PointValue, f64)) {
+        let area = Geometry::new(self.disc.vertices(c)).area;
+        for q in rule {
+            let v = self.at_cell(c, q.l);
+            f(&v, q.w * area * v.weight);
+        }
+    }
+
+    /// Linear combination Σ k_i F_i of fields on the same discretisation.
+    pub fn combine(parts: &[(f64, &Field)]) -> Option<Field> {
+        let first = parts.first()?.1;
+        let mut a = vec![0.0; first.a.len()];
+        for (k, f) in parts {
+            for (x, y) in a.iter_mut().zip(&f.a) {
+                *x += k * y;
+            }
+        }
+        Some(Field {
+            disc: first.disc.clone(),
+            locator: first.locator.clone(),
+            nu: first.nu.clone(),
+            a,
+        })
+    }
+
+    /// Reluctivity at point `x` of cell `c`.
+    pub fn nu_at(&self, c: usize, x: [f64; 2]) -> f64 {
+        self.nu[self.disc.cell_region[c] as usize].at(x, self.disc.formulation)
+    }
+
+    /// Magnetic energy ½∫ν|B|² dV over the cells for which `keep(cell)` holds
+    /// (J, per metre of depth in planar form). Image cells hold the exterior's energy.
+    pub fn energy(&self, keep: impl Fn(usize) -> bool) -> f64 {
+        self.coenergy_with(self, keep) * 0.5
+    }
+
+    /// ∫ν B·B' dV with another field on the same discretisation (mutual energy term).
+    pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool) -> f64 {
+        let rule = &crate::quadrature::DEGREE6;
+        let mut w = 0.0;
+        for c in (0..self.disc.n_cells()).filter(|&c| keep(c)) {
+            let area = Geometry::new(self.disc.vertices(c)).area;
+            for q in rule {
+                let v = self.at_cell(c, q.l);
+                let u = other.at_cell(c, q.l);
+                w += q.w
+                    * area
+                    * v.weight
+                    * self.nu_at(c, v.x)
+                    * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
+            }
+        }
+        w
+    }
+}

@@ -1,0 +1,291 @@
+//! From a validated [`Case`] to what the library crates take: the mesh specification, who
+//! owns each region, and the solver's materials, windings and boundary conditions.
+//!
+//! Open boundaries: the exterior of a disk is mapped into an image disk by Kelvin inversion
+//! (see fluxpick-solver). A rect domain with `boundary = "open"` is therefore enlarged to the
+//! disk (or half or quarter disk on symmetry lines and the axis) that encloses it with a 10 %
+//! margin; the rect only says how far the near field must be meshed.
+
+use fluxpick_mesh::{Cuts, MeshParams, MeshSpec, Outer, RegionInput, Shape, Side};
+use fluxpick_solver::{Formulation, Order, RegionMaterial, Spread, Winding, WindingRegion};
+
+use crate::case::{BoundaryKind, Case, ConductorKind, DomainSide, EdgeKind, Symmetry};
+
+/// Radius of the open-boundary disk relative to the farthest domain corner from its centre.
+pub const OPEN_DISK_MARGIN: f64 = 1.1;
+/// Regions without a `mesh_size` get at most this fraction of their smallest extent.
+pub const DEFAULT_REGION_SIZE_FRACTION: f64 = 1.0 / 4.0;
+
+/// What a mesh region is in the case.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Owner {
+    Air,
+    Part(usize),
+    Conductor(usize),
+    /// Coil index, side index, sense.
+    CoilSide(usize, usize, f64),
+    Exterior,
+}
+
+#[derive(Debug, thiserror::Error, PartialEq)]
+pub enum BuildError {
+    #[error("an open boundary with symmetry conditions on both the {0:?} and the {1:?} sides cannot be represented: model one half and make the other side part of the open boundary")]
+    OpposedSymmetryEdges(DomainSide, DomainSide),
+    #[error("the axisymmetric domain must start at the axis (r = 0) for an open boundary; it starts at r = {0} m")]
+    AxisymmetricDomainOffAxis(f64),
+    #[error("the domain must be a rect or a circle")]
+    DomainShape,
+    #[error("material `{0}` is not defined")]
+    UnknownMaterial(String),
+}
+
+/// The case turned into the library crates' inputs.
+#[derive(Clone, Debug)]
+pub struct Model {
+    pub spec: MeshSpec,
+    /// Owner of each region id (index = region id).
+    pub owners: Vec<Owner>,
+    pub formulation: Formulation,
+    pub order: Order,
+    pub dirichlet: Vec<Side>,
+}
+
+fn side_of(s: DomainSide) -> Side {
+    match s {
+        DomainSide::Left => Side::Left,
+        DomainSide::Right => Side::Right,
+        DomainSide::Bottom => Side::Bottom,
+        DomainSide::Top => Side::Top,
+    }
+}
+
+fn extent(shape: &Shape) -> f64 {
+    match shape {
+        Shape::Rect { min, max } => (max[0] - min[0]).min(max[1] - min[1]),
+        Shape::Circle { radius, .. } => 2.0 * radius,
+        Shape::Ellipse { semi_axes, .. } => 2.0 * semi_axes[0].min(semi_axes[1]),
+        Shape::Annulus { inner, outer, .. } => outer - inner,
+        Shape::Polygon(p) => {
+            let lo = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min));
+            let hi = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max));
+            (hi[0] - lo[0]).min(hi[1] - lo[1])
+        }
+    }
+}
+
+fn region(shape: &Shape, size: Option<f64>, background: f64) -> RegionInput {
+    let default = (extent(shape) * DEFAULT_REGION_SIZE_FRACTION).min(background);
+    RegionInput {
+        shape: shape.clone(),
+        max_edge: Some(size.unwrap_or(default).min(background)),
+    }
+}
+
+impl Model {
+    pub fn new(case: &Case) -> Result<Model, BuildError> {
+        let axi = case.symmetry == Symmetry::Axisymmetric;
+        let h = case.domain.mesh_size;
+        let mut regions = Vec::new();
+        let mut owners = vec![Owner::Air];
+        for (i, p) in case.parts.iter().enumerate() {
+            regions.push(region(&p.shape, p.mesh_size, h));
+            owners.push(Owner::Part(i));
+        }
+        for (i, c) in case.conductors.iter().enumerate() {
+            regions.push(region(&c.shape, c.mesh_size, h));
+            owners.push(Owner::Conductor(i));
+        }
+        for (i, c) in case.coils.iter().enumerate() {
+            for (k, (shape, sense)) in c.window.shapes().into_iter().enumerate() {
+                regions.push(region(shape, c.mesh_size, h));
+                owners.push(Owner::CoilSide(i, k, sense));
+            }
+        }
+        let edge = |s: DomainSide| case.domain.edges.iter().find(|e| e.0 == s).map(|e| e.1);
+        let mut dirichlet = Vec::new();
+        // Flux-parallel edges hold the potential; flux-normal ones are natural.
+        for s in [
+            DomainSide::Left,
+            DomainSide::Right,
+            DomainSide::Bottom,
+            DomainSide::Top,
+        ] {
+            match (case.domain.boundary, edge(s)) {
+                (_, Some(EdgeKind::FluxParallel)) => dirichlet.push(side_of(s)),
+                (BoundaryKind::Fixed, None) => dirichlet.push(side_of(s)),
+                _ => {}
+            }
+        }
+        if case.domain.boundary == BoundaryKind::Fixed {
+            dirichlet.push(Side::Arc);
+        }
+        if axi && !dirichlet.contains(&Side::Left) {
+            dirichlet.push(Side::Left); // the axis: A = 0
+        }
+        let (outer, exterior_image) = match (&case.domain.shape, case.domain.boundary) {
+            (Shape::Rect { min, max }, BoundaryKind::Fixed) => (
+                Outer::Rect {
+                    min: *min,
+                    max: *max,
+                },
+                false,
+            ),
+            (Shape::Circle { center, radius }, BoundaryKind::Fixed) => (
+                Outer::Disk {
+                    center: *center,
+                    radius: *radius,
+                    cuts: Cuts::default(),
+                },
+                false,
+            ),
+            (Shape::Circle { center, radius }, BoundaryKind::Open) => (
+                Outer::Disk {
+                    center: *center,
+                    radius: *radius,
+                    cuts: Cuts::default(),
+                },
+                true,
+            ),
+            (Shape::Rect { min, max }, BoundaryKind::Open) => {
+                let has = |s| edge(s).is_some();
+                for (a, b) in [
+                    (DomainSide::Left, DomainSide::Right),
+                    (DomainSide::Bottom, DomainSide::Top),
+                ] {
+                    if has(a) && has(b) {
+                        return Err(BuildError::OpposedSymmetryEdges(a, b));
+                    }
+                }
+                if axi && min[0].abs() > 1e-12 * (max[0] - min[0]) {
+                    return Err(BuildError::AxisymmetricDomainOffAxis(min[0]));
+                }
+                let cuts = Cuts {
+                    left: axi || has(DomainSide::Left),
+                    right: has(DomainSide::Right),
+                    bottom: has(DomainSide::Bottom),
+                    top: has(DomainSide::Top),
+                };
+                let cx = if cuts.left {
+                    min[0]
+                } else if cuts.right {
+                    max[0]
+                } else {
+                    0.5 * (min[0] + max[0])
+                };
+                let cy = if cuts.bottom {
+                    min[1]
+                } else if cuts.top {
+                    max[1]
+                } else {
+                    0.5 * (min[1] + max[1])
+                };
+                let far = [min, max]
+                    .iter()
+                    .flat_map(|a| [min, max].map(|b| [a[0], b[1]]))
+                    .map(|p| (p[0] - cx).hypot(p[1] - cy))
+                    .fold(0.0, f64::max);
+                (
+                    Outer::Disk {
+                        center: [cx, cy],
+                        radius: OPEN_DISK_MARGIN * far,
+                        cuts,
+                    },
+                    true,
+                )
+            }
+            _ => return Err(BuildError::DomainShape),
+        };
+        if exterior_image {
+            owners.push(Owner::Exterior);
+        }
+        let spec = MeshSpec {
+            outer,
+            background_max_edge: h,
+            regions,
+            clip_at_axis: axi,
+            exterior_image,
+            params: MeshParams::default(),
+        };
+        Ok(Model {
+            spec,
+            owners,
+            formulation: if axi {
+                Formulation::Axisymmetric
+            } else {
+                Formulation::Planar
+            },
+            order: if case.element_order == 1 {
+                Order::Linear
+            } else {
+                Order::Quadratic
+            },
+            dirichlet,
+        })
+    }
+
+    /// Material of every region id (air for coil windows and the exterior).
+    pub fn materials(&self, case: &Case) -> Result<Vec<RegionMaterial>, BuildError> {
+        let get = |name: &str| {
+            case.materials
+                .get(name)
+                .map(|m| RegionMaterial::from_mu_r(m.mu_r, m.conductivity))
+                .ok_or_else(|| BuildError::UnknownMaterial(name.to_string()))
+        };
+        self.owners
+            .iter()
+            .map(|o| match o {
+                Owner::Part(i) => get(&case.parts[*i].material),
+                Owner::Conductor(i) => get(&case.conductors[*i].material),
+                _ => Ok(RegionMaterial::from_mu_r(1.0, 0.0)),
+            })
+            .collect()
+    }
+
+    /// The windings: every coil (all its sides), then every conductor.
+    pub fn windings(&self, case: &Case) -> Vec<Winding> {
+        let mut out: Vec<Winding> = case
+            .coils
+            .iter()
+            .map(|c| Winding {
+                name: c.name.clone(),
+                regions: vec![],
+            })
+            .collect();
+        for (r, o) in self.owners.iter().enumerate() {
+            if let Owner::CoilSide(i, _, sense) = o {
+                out[*i].regions.push(WindingRegion {
+                    region: r as u32,
+                    turns: case.coils[*i].turns * sense,
+                    spread: Spread::Uniform,
+                });
+            }
+        }
+        for (r, o) in self.owners.iter().enumerate() {
+            if let Owner::Conductor(i) = o {
+                let c = &case.conductors[*i];
+                out.push(Winding {
+                    name: c.name.clone(),
+                    regions: vec![WindingRegion {
+                        region: r as u32,
+                        turns: 1.0,
+                        spread: match c.kind {
+                            ConductorKind::Solid => Spread::Solid,
+                            ConductorKind::Stranded => Spread::Uniform,
+                        },
+                    }],
+                });
+            }
+        }
+        out
+    }
+
+    /// Region ids owned by a part, a conductor or a coil.
+    pub fn regions_of(&self, pred: impl Fn(&Owner) -> bool) -> Vec<u32> {
+        self.owners
+            .iter()
+            .enumerate()
+            .filter(|(_, o)| pred(o))
+            .map(|(r, _)| r as u32)
+            .collect()
+    }
+}

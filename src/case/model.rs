@@ -1,0 +1,269 @@
+//! The typed, validated case in SI units, built once from the raw file by
+//! [`crate::case::resolve`]. Lengths are in metres (coordinates too), the planar depth in
+//! metres, angles in degrees (`phase_deg`), B in T rms, currents in A rms, conductivity in S/m.
+//! Axisymmetric coordinates are `[r, z]`. Only these types go downstream (STYLE.md point 6).
+
+use std::collections::BTreeMap;
+
+pub use fluxpick_mesh::Shape;
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Symmetry {
+    Planar,
+    Axisymmetric,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BoundaryKind {
+    /// Far field, as if the air went on forever.
+    Open,
+    /// A held at the background field's potential on the outer boundary (0 without one).
+    Fixed,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum EdgeKind {
+    /// Field lines cross at right angles (symmetry plane, natural condition).
+    FluxNormal,
+    /// A held as for `BoundaryKind::Fixed`.
+    FluxParallel,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum DomainSide {
+    Left,
+    Right,
+    Bottom,
+    Top,
+}
+
+/// The air region enclosing everything.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Domain {
+    /// `Shape::Rect` or `Shape::Circle`. In an axisymmetric model a circle is centred on the
+    /// axis and stands for the half disk at r >= 0.
+    pub shape: Shape,
+    pub boundary: BoundaryKind,
+    /// Largest element edge in the air far away (m).
+    pub mesh_size: f64,
+    /// Per-side conditions overriding `boundary` (rect domains only; never the axis side).
+    pub edges: Vec<(DomainSide, EdgeKind)>,
+}
+
+/// A uniform applied field.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Background {
+    /// T rms.
+    pub b: f64,
+    /// Unit vector; `[0, ±1]` in axisymmetric models.
+    pub direction: [f64; 2],
+    pub phase_deg: f64,
+}
+
+/// A linear (or B-H curve) material.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Material {
+    pub name: String,
+    pub mu_r: f64,
+    /// S/m.
+    pub conductivity: f64,
+    /// `[H A/m, B T]` points, H and B strictly increasing.
+    pub bh: Option<Vec<[f64; 2]>>,
+    /// Saturation flux density, T.
+    pub b_sat: Option<f64>,
+}
+
+/// Passive region: core, steel, shield, spacer.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Part {
+    pub name: String,
+    pub material: String,
+    pub shape: Shape,
+    /// Largest element edge inside (m); `None` = the domain's.
+    pub mesh_size: Option<f64>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ConductorKind {
+    /// Eddy currents and skin effect at f > 0.
+    Solid,
+    /// Uniform current density.
+    Stranded,
+}
+
+/// A region with an imposed total current.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Conductor {
+    pub name: String,
+    pub material: String,
+    pub shape: Shape,
+    /// A rms (DC value when frequency = 0).
+    pub current: f64,
+    pub phase_deg: f64,
+    pub kind: ConductorKind,
+    pub mesh_size: Option<f64>,
+}
+
+/// The winding wire.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Wire {
+    /// The AWG number when given as `"awgNN"`.
+    pub awg: Option<u32>,
+    /// Bare copper diameter, m.
+    pub diameter: f64,
+}
+
+/// Where a coil's turns lie.
+#[derive(Clone, Debug, PartialEq)]
+pub enum CoilWindow {
+    /// One window (axisymmetric coils).
+    Single(Shape),
+    /// Several sides, each with its sense (+1 current going in, −1 coming back); all the turns
+    /// pass through every side.
+    Sides(Vec<(Shape, f64)>),
+}
+
+impl CoilWindow {
+    /// The shapes of the window, with their senses (+1 for a single window).
+    pub fn shapes(&self) -> Vec<(&Shape, f64)> {
+        match self {
+            CoilWindow::Single(s) => vec![(s, 1.0)],
+            CoilWindow::Sides(v) => v.iter().map(|(s, k)| (s, *k)).collect(),
+        }
+    }
+}
+
+/// A winding whose flux linkage and circuit figures are reported.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Coil {
+    pub name: String,
+    pub turns: f64,
+    pub wire: Wire,
+    /// Copper area / window area (of one side, for sides).
+    pub fill_factor: f64,
+    pub temperature_c: f64,
+    /// A rms; 0 = open-circuit pickup.
+    pub current: f64,
+    pub phase_deg: f64,
+    pub window: CoilWindow,
+    pub mesh_size: Option<f64>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Tuning {
+    Series,
+    Parallel,
+    None,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Load {
+    Matched,
+    /// Ω.
+    Resistance(f64),
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Storage {
+    /// F.
+    pub capacitance: f64,
+    /// V.
+    pub voltage: f64,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Circuit {
+    /// Name of the coil the circuit belongs to.
+    pub coil: String,
+    pub tuning: Tuning,
+    pub load: Load,
+    pub storage: Option<Storage>,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum ProbeKind {
+    Line {
+        from: [f64; 2],
+        to: [f64; 2],
+        points: usize,
+    },
+    Grid {
+        min: [f64; 2],
+        max: [f64; 2],
+        points: [usize; 2],
+    },
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Probe {
+    pub name: String,
+    pub kind: ProbeKind,
+}
+
+/// One swept parameter; several sweeps form a grid. Values are in the file's own terms (a
+/// length parameter is in `length_unit`), as they replace `[parameters]` entries.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sweep {
+    pub parameter: String,
+    pub values: Vec<f64>,
+}
+
+/// A whole validated case.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Case {
+    pub title: String,
+    pub symmetry: Symmetry,
+    /// Hz; 0 = magnetostatic.
+    pub frequency: f64,
+    /// Planar extent along the conductors, m (kept, but unused, in axisymmetric models).
+    pub depth: f64,
+    /// 1 or 2.
+    pub element_order: u8,
+    /// Metres per file length unit.
+    pub length_unit_m: f64,
+    /// Resolved parameter values, in the file's own terms, overrides applied.
+    pub parameters: BTreeMap<String, f64>,
+    pub domain: Domain,
+    pub background: Option<Background>,
+    /// Every material, the built-ins included (a user table of the same name replaces one).
+    pub materials: BTreeMap<String, Material>,
+    pub parts: Vec<Part>,
+    pub conductors: Vec<Conductor>,
+    pub coils: Vec<Coil>,
+    pub circuit: Option<Circuit>,
+    pub probes: Vec<Probe>,
+    pub sweeps: Vec<Sweep>,
+}
+
+/// Relative permeability 1, conductivity 0.
+pub const AIR: &str = "air";
+/// Annealed copper, 5.8e7 S/m: a typical value (IEC 60028 gives 1/1.7241e-8 = 5.80e7 S/m at
+/// 20 °C), μr 1.
+pub const COPPER: &str = "copper";
+/// Aluminium, 3.5e7 S/m: a typical value for pure and conductor-grade aluminium at room
+/// temperature (alloys run lower), μr 1.
+pub const ALUMINIUM: &str = "aluminium";
+
+/// The built-in materials (typical values, see [`AIR`], [`COPPER`], [`ALUMINIUM`]); a
+/// `[materials.NAME]` table of the same name replaces one.
+pub fn builtin_materials() -> BTreeMap<String, Material> {
+    let mk = |name: &str, mu_r: f64, conductivity: f64| {
+        (
+            name.to_string(),
+            Material {
+                name: name.into(),
+                mu_r,
+                conductivity,
+                bh: None,
+                b_sat: None,
+            },
+        )
+    };
+    [
+        mk(AIR, 1.0, 0.0),
+        mk(COPPER, 1.0, 5.8e7),
+        mk(ALUMINIUM, 1.0, 3.5e7),
+    ]
+    .into_iter()
+    .collect()
+}

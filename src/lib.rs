@@ -1,0 +1,12 @@
+//! fluxpick: finite-element field solver for inductive pickups that harvest or measure the
+//! 50/60 Hz leakage field beside power conductors.
+//!
+//! Data flows one way: case file ([`case`]) → model ([`build`]) → mesh (fluxpick-mesh) →
+//! solve (fluxpick-solver) → figures (fluxpick-postproc, [`study`]) → files ([`output`]).
+//! The command-line front end is [`cli`]; `src/main.rs` only calls it.
+
+pub mod build;
+pub mod case;
+pub mod cli;
+pub mod output;
+pub mod study;

@@ -1,0 +1,283 @@
+//! Output files of the commands (results.json, field.vtu, mesh.vtu) and the terminal
+//! summary. Every file is written to a temporary name and renamed when complete.
+
+use std::fmt::Write as _;
+use std::path::Path;
+
+use fluxpick_mesh::Mesh;
+use fluxpick_postproc::atomic_write;
+use fluxpick_postproc::vtk::{DataArray, Grid, VTK_QUADRATIC_TRIANGLE, VTK_TRIANGLE};
+use fluxpick_solver::{Order, MU0};
+
+use crate::build::{Model, Owner};
+use crate::case::Case;
+use crate::study::{Results, Run};
+
+/// Region names for output: "air", part/conductor names, "coil/side", "exterior".
+pub fn region_names(case: &Case, model: &Model) -> Vec<String> {
+    model
+        .owners
+        .iter()
+        .map(|o| match *o {
+            Owner::Air => "air".to_string(),
+            Owner::Part(i) => case.parts[i].name.clone(),
+            Owner::Conductor(i) => case.conductors[i].name.clone(),
+            Owner::CoilSide(i, k, _) => format!("{}/{}", case.coils[i].name, k),
+            Owner::Exterior => "exterior".to_string(),
+        })
+        .collect()
+}
+
+fn material_index(case: &Case, model: &Model) -> Vec<f64> {
+    let names: Vec<&String> = case.materials.keys().collect();
+    let idx = |m: &str| {
+        names
+            .iter()
+            .position(|n| n.as_str() == m)
+            .map_or(-1.0, |i| i as f64)
+    };
+    model
+        .owners
+        .iter()
+        .map(|o| match *o {
+            Owner::Part(i) => idx(&case.parts[i].material),
+            Owner::Conductor(i) => idx(&case.conductors[i].material),
+            _ => idx("air"),
+        })
+        .collect()
+}
+
+/// mesh.vtu: linear triangles, cell data region id, material index, minimum angle.
+pub fn write_mesh_vtu(path: &Path, case: &Case, model: &Model, mesh: &Mesh) -> std::io::Result<()> {
+    let mat = material_index(case, model);
+    let quality = mesh.triangle_quality();
+    let grid = Grid {
+        points: mesh.points.clone(),
+        cells: mesh.triangles.iter().map(|t| t.to_vec()).collect(),
+        cell_types: vec![VTK_TRIANGLE; mesh.triangles.len()],
+        point_data: vec![],
+        cell_data: vec![
+            DataArray::scalar(
+                "region",
+                mesh.triangle_region.iter().map(|&r| f64::from(r)).collect(),
+            ),
+            DataArray::scalar(
+                "material",
+                mesh.triangle_region
+                    .iter()
+                    .map(|&r| mat[r as usize])
+                    .collect(),
+            ),
+            DataArray::scalar("min_angle_deg", quality),
+        ],
+    };
+    grid.write(path)
+}
+
+/// field.vtu: the physical domain (the exterior image left out). Point data A (Wb/m; the
+/// real and imaginary rms parts at f > 0); cell data B at the centroid (T), |B| (T rms), μr,
+/// region id.
+pub fn write_field_vtu(path: &Path, case: &Case, run: &Run) -> std::io::Result<()> {
+    let d = &run.solution.disc;
+    let harmonic = case.frequency > 0.0;
+    let cells: Vec<usize> = (0..d.n_cells()).filter(|&c| !d.is_image(c)).collect();
+    let mut new_id = vec![u32::MAX; d.points.len()];
+    let mut points = Vec::new();
+    let mut old_of = Vec::new();
+    let mut conn = Vec::with_capacity(cells.len());
+    for &c in &cells {
+        let ids: Vec<u32> = d
+            .cell(c)
+            .iter()
+            .map(|&n| {
+                if new_id[n as usize] == u32::MAX {
+                    new_id[n as usize] = points.len() as u32;
+                    points.push(d.points[n as usize]);
+                    old_of.push(n as usize);
+                }
+                new_id[n as usize]
+            })
+            .collect();
+        conn.push(ids);
+    }
+    let cell_type = if d.order == Order::Quadratic {
+        VTK_QUADRATIC_TRIANGLE
+    } else {
+        VTK_TRIANGLE
+    };
+    let [re, im] = &run.field;
+    let mut point_data = vec![];
+    let mut cell_data = vec![];
+    let b_re: Vec<[f64; 2]> = cells.iter().map(|&c| re.cell_b(c)).collect();
+    let b_im: Vec<[f64; 2]> = cells.iter().map(|&c| im.cell_b(c)).collect();
+    let babs: Vec<f64> = b_re
+        .iter()
+        .zip(&b_im)
+        .map(|(a, b)| (a[0].powi(2) + a[1].powi(2) + b[0].powi(2) + b[1].powi(2)).sqrt())
+        .collect();
+    if harmonic {
+        point_data.push(DataArray::scalar(
+            "A_re",
+            old_of.iter().map(|&n| re.a[n]).collect(),
+        ));
+        point_data.push(DataArray::scalar(
+            "A_im",
+            old_of.iter().map(|&n| im.a[n]).collect(),
+        ));
+        cell_data.push(DataArray::vector2("B_re", &b_re));
+        cell_data.push(DataArray::vector2("B_im", &b_im));
+    } else {
+        point_data.push(DataArray::scalar(
+            "A",
+            old_of.iter().map(|&n| re.a[n]).collect(),
+        ));
+        cell_data.push(DataArray::vector2("B", &b_re));
+    }
+    cell_data.push(DataArray::scalar("B_abs", babs));
+    let materials = run.model.materials(case).unwrap_or_default();
+    cell_data.push(DataArray::scalar(
+        "mu_r",
+        cells
+            .iter()
+            .map(|&c| {
+                materials
+                    .get(d.cell_region[c] as usize)
+                    .map_or(1.0, |m| 1.0 / (MU0 * m.nu))
+            })
+            .collect(),
+    ));
+    cell_data.push(DataArray::scalar(
+        "region",
+        cells.iter().map(|&c| f64::from(d.cell_region[c])).collect(),
+    ));
+    let grid = Grid {
+        points,
+        cells: conn,
+        cell_types: vec![cell_type; cells.len()],
+        point_data,
+        cell_data,
+    };
+    grid.write(path)
+}
+
+pub fn write_results_json(path: &Path, results: &Results) -> std::io::Result<()> {
+    let text = serde_json::to_string_pretty(results).map_err(std::io::Error::other)?;
+    atomic_write(path, format!("{text}\n").as_bytes())
+}
+
+/// Engineering notation with SI prefix: `eng(2.5e-5, "H")` = "25.0 µH".
+pub fn eng(v: f64, unit: &str) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v} {unit}");
+    }
+    const P: [(f64, &str); 9] = [
+        (1e9, "G"),
+        (1e6, "M"),
+        (1e3, "k"),
+        (1.0, ""),
+        (1e-3, "m"),
+        (1e-6, "µ"),
+        (1e-9, "n"),
+        (1e-12, "p"),
+        (1e-15, "f"),
+    ];
+    let a = v.abs();
+    let (s, p) = P
+        .iter()
+        .find(|(s, _)| a >= *s * 0.999_5)
+        .copied()
+        .unwrap_or((1e-15, "f"));
+    let x = v / s;
+    let digits = if x.abs() >= 100.0 {
+        1
+    } else if x.abs() >= 10.0 {
+        2
+    } else {
+        3
+    };
+    format!("{x:.digits$} {p}{unit}")
+}
+
+/// The terminal summary of a solve.
+pub fn summary(r: &Results) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "{} ({}, {} Hz)", r.title, r.symmetry, r.frequency_hz);
+    let _ = writeln!(
+        s,
+        "mesh: {} triangles, {} nodes, {} unknowns (order {}), min angle {:.1}°",
+        r.mesh.triangles, r.mesh.nodes, r.mesh.unknowns, r.mesh.element_order, r.mesh.min_angle_deg
+    );
+    let _ = writeln!(
+        s,
+        "time: mesh {:.2} s, assemble {:.2} s, factor {:.2} s, solve {:.2} s, post {:.2} s",
+        r.solve.mesh_s, r.solve.assemble_s, r.solve.factor_s, r.solve.solve_s, r.solve.post_s
+    );
+    if let Some(d) = r.depth_m {
+        let _ = writeln!(s, "planar figures are for a depth of {}", eng(d, "m"));
+    }
+    let _ = writeln!(s, "stored energy {}", eng(r.energy_j, "J"));
+    if !r.coils.is_empty() {
+        let _ = writeln!(
+            s,
+            "\n{:<14} {:>12} {:>12} {:>12} {:>12} {:>9} {:>12} {:>12}",
+            "coil", "flux link.", "EMF", "L", "R", "Q", "C tune", "P matched"
+        );
+        for (name, c) in &r.coils {
+            let opt = |v: Option<f64>, u: &str| v.map_or("n/a".to_string(), |v| eng(v, u));
+            let _ = writeln!(
+                s,
+                "{:<14} {:>12} {:>12} {:>12} {:>12} {:>9} {:>12} {:>12}",
+                name,
+                eng(c.flux_linkage_wb, "Wb"),
+                eng(c.emf_v, "V"),
+                eng(c.inductance_h, "H"),
+                eng(c.resistance_ohm, "Ω"),
+                c.q.map_or("n/a".to_string(), |q| format!("{q:.1}")),
+                opt(c.tuning_capacitance_f, "F"),
+                opt(c.matched_power_w, "W"),
+            );
+            if let Some(a) = c.equivalent_area_m2 {
+                let _ = writeln!(s, "{:<14} equivalent area {:.4e} m²", "", a);
+            }
+        }
+    }
+    if !r.parts.is_empty() {
+        let _ = writeln!(
+            s,
+            "\n{:<14} {:>12} {:>12} {:>10}",
+            "part", "mean |B|", "peak |B|", "peak/sat"
+        );
+        for (name, p) in &r.parts {
+            let _ = writeln!(
+                s,
+                "{:<14} {:>12} {:>12} {:>10}",
+                name,
+                eng(p.b_mean_t, "T"),
+                eng(p.b_peak_t, "T"),
+                p.b_peak_over_sat
+                    .map_or("-".into(), |x| format!("{:.1} %", 100.0 * x))
+            );
+        }
+    }
+    if !r.conductors.is_empty() {
+        let _ = writeln!(
+            s,
+            "\n{:<14} {:>12} {:>12} {:>12}",
+            "conductor", "current", "R", "loss"
+        );
+        for (name, c) in &r.conductors {
+            let _ = writeln!(
+                s,
+                "{:<14} {:>12} {:>12} {:>12}",
+                name,
+                eng(c.current_a, "A"),
+                eng(c.resistance_ohm, "Ω"),
+                eng(c.loss_w, "W")
+            );
+        }
+    }
+    for w in &r.warnings {
+        let _ = writeln!(s, "warning: {w}");
+    }
+    s
+}

@@ -1,0 +1,148 @@
+//! The files `solve` and `mesh` write are what they claim: results.json carries the keys of
+//! the contract (shared/CASE-FORMAT.md), and the .vtu files read back in a general-purpose VTK
+//! reader (the vtkio crate) with the advertised arrays.
+
+mod common;
+use common::*;
+
+use vtkio::model::{Attribute, DataSet, Piece};
+
+const CASE: &str = r#"
+[model]
+title = "rod in a uniform field"
+symmetry = "axisymmetric"
+[domain]
+rect = { min = [0, -100], max = [100, 100] }
+boundary = "open"
+mesh_size = 10
+[background]
+b = 1.0e-6
+direction = [0, 1]
+[materials.ferrite]
+mu_r = 1000
+[[part]]
+name = "core"
+material = "ferrite"
+rect = { min = [0, -40], max = [5, 40] }
+mesh_size = 1.5
+[[coil]]
+name = "pickup"
+turns = 1000
+wire = "awg36"
+fill_factor = 0.6
+rect = { min = [5.5, -30], max = [8, 30] }
+[[probe]]
+name = "axis"
+line = { from = [0, -80], to = [0, 80], points = 9 }
+"#;
+
+fn read_vtu(path: &std::path::Path) -> vtkio::model::UnstructuredGridPiece {
+    let vtk = vtkio::Vtk::import(path).unwrap_or_else(|e| panic!("{}: {e:?}", path.display()));
+    match vtk.data {
+        DataSet::UnstructuredGrid { pieces, .. } => match pieces.into_iter().next() {
+            Some(Piece::Inline(p)) => *p,
+            _ => panic!("no inline piece"),
+        },
+        _ => panic!("not an unstructured grid"),
+    }
+}
+
+fn array(attrs: &[Attribute], name: &str) -> Vec<f64> {
+    attrs
+        .iter()
+        .find_map(|a| match a {
+            Attribute::DataArray(d) if d.name == name => d.data.cast_into::<f64>(),
+            _ => None,
+        })
+        .unwrap_or_else(|| panic!("no array {name}"))
+}
+
+#[test]
+fn solve_writes_contract_keys_and_a_readable_field_vtu() {
+    let (dir, case) = write_case("rod.toml", CASE);
+    let out = dir.path().join("out");
+    let r = solve(&case, &out);
+    for key in [
+        "mesh.nodes",
+        "mesh.triangles",
+        "mesh.unknowns",
+        "mesh.min_angle_deg",
+        "energy_j",
+        "parts.core.b_mean_t",
+        "parts.core.b_peak_t",
+        "parts.core.loss_w",
+        "coils.pickup.flux_linkage_wb",
+        "coils.pickup.emf_v",
+        "coils.pickup.inductance_h",
+        "coils.pickup.resistance_ohm",
+        "coils.pickup.eddy_resistance_ohm",
+        "coils.pickup.equivalent_area_m2",
+    ] {
+        let v = get(&r, key);
+        assert!(v.is_finite(), "{key} = {v}");
+    }
+    // q, tuning capacitance and matched power are not applicable at 0 Hz: present, null
+    for key in ["q", "tuning_capacitance_f", "matched_power_w"] {
+        assert!(
+            r["coils"]["pickup"][key].is_null(),
+            "{key} should be null at 0 Hz"
+        );
+    }
+    assert_eq!(r["probes"]["axis"]["points"].as_array().unwrap().len(), 9);
+    assert_eq!(r["probes"]["axis"]["b_t"].as_array().unwrap().len(), 9);
+
+    let p = read_vtu(&out.join("field.vtu"));
+    assert_eq!(p.num_points() as f64, get(&r, "mesh.nodes"));
+    assert_eq!(p.cells.types.len() as f64, get(&r, "mesh.triangles"));
+    let babs = array(&p.data.cell, "B_abs");
+    let mu = array(&p.data.cell, "mu_r");
+    let a = array(&p.data.point, "A");
+    assert_eq!(a.len(), p.num_points());
+    assert_eq!(babs.len(), p.cells.types.len());
+    assert!(mu.contains(&1000.0) && mu.contains(&1.0));
+    // The core concentrates the field: its cells carry the largest |B|.
+    let peak = babs.iter().copied().fold(0.0, f64::max);
+    let core_peak = babs
+        .iter()
+        .zip(&mu)
+        .filter(|(_, m)| **m == 1000.0)
+        .map(|(b, _)| *b)
+        .fold(0.0, f64::max);
+    assert!(
+        core_peak == peak && peak > 5e-6,
+        "peak |B| {peak}, in the core {core_peak}"
+    );
+    // no temporary files left behind
+    for e in std::fs::read_dir(&out).unwrap() {
+        let n = e.unwrap().file_name().into_string().unwrap();
+        assert!(!n.starts_with('.'), "leftover {n}");
+    }
+}
+
+#[test]
+fn mesh_writes_a_readable_mesh_vtu() {
+    let (dir, case) = write_case("rod.toml", CASE);
+    let out = dir.path().join("m");
+    let o = fluxpick(&[
+        "mesh",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.contains("core") && text.contains("triangles"),
+        "{text}"
+    );
+    let p = read_vtu(&out.join("mesh.vtu"));
+    let region = array(&p.data.cell, "region");
+    let angle = array(&p.data.cell, "min_angle_deg");
+    assert_eq!(region.len(), p.cells.types.len());
+    assert!(region.contains(&1.0), "core region present");
+    assert!(
+        angle.iter().all(|a| *a > 20.0),
+        "min angle {}",
+        angle.iter().copied().fold(90.0, f64::min)
+    );
+}
