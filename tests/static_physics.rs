@@ -208,7 +208,7 @@ symmetry = "axisymmetric"
 [domain]
 rect = { min = [0, -60], max = [60, 60] }
 boundary = "open"
-mesh_size = 6
+mesh_size = 2
 [[coil]]
 name = "loop"
 turns = 1

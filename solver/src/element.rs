@@ -210,6 +210,10 @@ pub struct Local<const N: usize> {
     pub load_inv_r: [f64; N],
     /// `∫ w / r² dS` in axisymmetric, `∫ w dS` in planar (a solid conductor's self term)
     pub measure_inv_r2: f64,
+    /// Cross-section area `∫ dS` (no volume weight).
+    pub area: f64,
+    /// `∫ dS / r` (no volume weight) in axisymmetric, the area in planar.
+    pub area_inv_r: f64,
 }
 
 /// Element kernel: stiffness, mass and load of one triangle. Pure function.
@@ -234,6 +238,8 @@ pub fn local_matrices_with<const N: usize, B: Basis<N>>(
         load: [0.0; N],
         load_inv_r: [0.0; N],
         measure_inv_r2: 0.0,
+        area: g.area,
+        area_inv_r: 0.0,
     };
     for q in rule {
         let pb = point_basis::<N, B>(&g, q.l, formulation);
@@ -244,6 +250,7 @@ pub fn local_matrices_with<const N: usize, B: Basis<N>>(
             Formulation::Axisymmetric => 1.0 / pb.x[0],
         };
         out.measure_inv_r2 += dw * inv_r * inv_r;
+        out.area_inv_r += q.w * g.area * inv_r;
         for i in 0..N {
             out.load[i] += dw * pb.n[i];
             out.load_inv_r[i] += dw * pb.n[i] * inv_r;

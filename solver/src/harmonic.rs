@@ -241,7 +241,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     // Right-hand sides: each winding at 1 A, then the background.
     let mut area = vec![0.0; d.region_count];
     for (c, l) in loc.iter().enumerate() {
-        area[d.cell_region[c] as usize] += l.load.iter().sum::<f64>();
+        area[d.cell_region[c] as usize] += l.area;
     }
     let zero = c64::new(0.0, 0.0);
     let scale = if axi { TAU } else { 1.0 };

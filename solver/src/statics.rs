@@ -153,8 +153,8 @@ fn solve_with<const N: usize, B: Basis<N>>(
     let mut inv_r = vec![0.0; d.region_count];
     for (c, l) in loc.iter().enumerate() {
         let r = d.cell_region[c] as usize;
-        area[r] += l.load.iter().sum::<f64>();
-        inv_r[r] += l.load_inv_r.iter().sum::<f64>();
+        area[r] += l.area;
+        inv_r[r] += l.area_inv_r;
     }
     let mut densities = Vec::new();
     for w in &p.windings {
