@@ -134,7 +134,7 @@ impl Mesh {
             }
             let p = self.triangle_points(t);
             let a = triangle_area(p[0], p[1], p[2]);
-            if !(a > 0.0) {
+            if a.is_nan() || a <= 0.0 {
                 return Err(InvariantViolation::NotCounterClockwise {
                     triangle: t,
                     area: a,

