@@ -100,8 +100,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             let c = load(&case)?;
             let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
             let t0 = std::time::Instant::now();
-            let mesh =
-                fluxpick_mesh::generate(&model.spec).map_err(|e| study_fail(&case, e.into()))?;
+            let mesh = crate::study::mesh_model(&c, &model).map_err(|e| study_fail(&case, e))?;
             let secs = t0.elapsed().as_secs_f64();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let path = out.join("mesh.vtu");

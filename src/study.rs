@@ -24,6 +24,8 @@ pub enum StudyError {
     Build(#[from] BuildError),
     #[error("meshing failed: {0}")]
     Mesh(#[from] fluxpick_mesh::MeshError),
+    #[error("`{0}` is wholly covered by entries drawn after it (parts, then conductors, then coils, each in file order), so nothing of it is left to mesh")]
+    Hidden(String),
     #[error("solve failed: {0}")]
     Solve(#[from] SolveError),
     #[error("part `{0}` is conductive (σ > 0) at frequency > 0: eddy currents need the time-harmonic solver, which this version does not have; set its conductivity to 0 to neglect them")]
@@ -35,6 +37,7 @@ impl StudyError {
     pub fn exit_code(&self) -> i32 {
         match self {
             StudyError::Build(_) | StudyError::EddyCurrentsUnsupported(_) => 2,
+            StudyError::Hidden(_) => 2,
             StudyError::Mesh(_) | StudyError::Solve(_) => 1,
         }
     }
@@ -198,6 +201,19 @@ pub fn mean_turn_length(case: &Case, window: &CoilWindow) -> f64 {
     }
 }
 
+/// Meshes a model, naming the entry when a mesh error concerns one.
+pub fn mesh_model(case: &Case, model: &Model) -> Result<Mesh, StudyError> {
+    fluxpick_mesh::generate(&model.spec).map_err(|e| match e {
+        fluxpick_mesh::MeshError::EmptyRegion { region } => StudyError::Hidden(
+            crate::output::region_names(case, model)
+                .get(region + 1)
+                .cloned()
+                .unwrap_or_else(|| format!("region {region}")),
+        ),
+        e => StudyError::Mesh(e),
+    })
+}
+
 pub fn run(case: &Case) -> Result<Run, StudyError> {
     let omega = TAU * case.frequency;
     let harmonic = case.frequency > 0.0;
@@ -223,7 +239,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
     }
     let model = Model::new(case)?;
     let t0 = Instant::now();
-    let mesh = fluxpick_mesh::generate(&model.spec)?;
+    let mesh = mesh_model(case, &model)?;
     let mesh_s = t0.elapsed().as_secs_f64();
     let materials = model.materials(case)?;
     let windings = model.windings(case);

@@ -162,6 +162,11 @@ fn bisect(
     }
 }
 
+/// Arc edges of an outer disk, as a fraction of the size there: short enough that the
+/// domain's refinement does not split them (which would leave uneven edges for the
+/// exterior image, where they are fixed).
+const ARC_SPACING: f64 = 0.5;
+
 fn split_loop(lp: &[Point], size: &dyn Fn(Point) -> f64, arc: Option<(Point, f64)>) -> Vec<Point> {
     let chord = |a: Point, b: Point| [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
     let mut out = Vec::with_capacity(lp.len());
@@ -170,16 +175,29 @@ fn split_loop(lp: &[Point], size: &dyn Fn(Point) -> f64, arc: Option<(Point, f64
         let (a, b) = (lp[k], lp[(k + 1) % n]);
         match arc {
             Some((c, r)) if is_on_circle(a, c, r) && is_on_circle(b, c, r) => {
-                let on_arc = |p: Point, q: Point| {
-                    let m = chord(p, q);
-                    let d = dist2(m, c).sqrt();
-                    if d > 1e-12 * r {
-                        [c[0] + (m[0] - c[0]) * r / d, c[1] + (m[1] - c[1]) * r / d]
-                    } else {
-                        m
-                    }
-                };
-                bisect(a, b, size, &on_arc, 0, &mut out)
+                // Equal steps along the arc (not bisection, which leaves pieces between
+                // half and all of the target): the exterior image keeps these edges
+                // unsplit, and its triangles are only as good as their evenness.
+                let ta = (a[1] - c[1]).atan2(a[0] - c[0]);
+                let tb = (b[1] - c[1]).atan2(b[0] - c[0]);
+                let mut span = tb - ta;
+                while span > std::f64::consts::PI {
+                    span -= std::f64::consts::TAU;
+                }
+                while span <= -std::f64::consts::PI {
+                    span += std::f64::consts::TAU;
+                }
+                let at = |t: f64| [c[0] + r * t.cos(), c[1] + r * t.sin()];
+                let h = (0..=4)
+                    .map(|i| size(at(ta + span * i as f64 / 4.0)))
+                    .fold(f64::INFINITY, f64::min);
+                let pieces = ((r * span.abs()) / (ARC_SPACING * h))
+                    .ceil()
+                    .clamp(1.0, 1e6) as usize;
+                out.push(a);
+                for i in 1..pieces {
+                    out.push(at(ta + span * i as f64 / pieces as f64));
+                }
             }
             _ => bisect(a, b, size, &chord, 0, &mut out),
         }

@@ -170,11 +170,14 @@ pub fn summary(case: &Case) -> String {
     for c in &case.conductors {
         let _ = writeln!(
             s,
-            "  {}: {} A rms at {}°, {:?}, {}, {}",
+            "  {}: {} A rms at {}°, {}, {}, {}",
             c.name,
             fmt_g(c.current),
             fmt_g(c.phase_deg),
-            c.kind,
+            match c.kind {
+                crate::case::ConductorKind::Solid => "solid",
+                crate::case::ConductorKind::Stranded => "stranded",
+            },
             mat(&c.material),
             shape_text(&c.shape, u, unit)
         );
@@ -212,7 +215,16 @@ pub fn summary(case: &Case) -> String {
             Load::Matched => "matched load".to_string(),
             Load::Resistance(r) => format!("load {} Ω", fmt_g(r)),
         };
-        let _ = writeln!(s, "circuit: coil {}, tuning {:?}, {load}", c.coil, c.tuning);
+        let _ = writeln!(
+            s,
+            "circuit: coil {}, tuning {}, {load}",
+            c.coil,
+            match c.tuning {
+                crate::case::Tuning::Series => "series",
+                crate::case::Tuning::Parallel => "parallel",
+                crate::case::Tuning::None => "none",
+            }
+        );
     }
     if !case.probes.is_empty() {
         let names: Vec<&str> = case.probes.iter().map(|p| p.name.as_str()).collect();
