@@ -78,6 +78,7 @@ fn region(shape: &Shape, size: Option<f64>, background: f64) -> RegionInput {
     RegionInput {
         shape: shape.clone(),
         max_edge: Some(size.unwrap_or(default).min(background)),
+        skin_edge: None,
     }
 }
 

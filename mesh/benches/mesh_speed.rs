@@ -10,6 +10,7 @@ fn spec(scale: f64) -> MeshSpec {
     let r = |min: [f64; 2], max: [f64; 2], h: f64| RegionInput {
         shape: Shape::Rect { min, max },
         max_edge: Some(h * scale),
+        skin_edge: None,
     };
     MeshSpec {
         outer: Outer::Rect {
@@ -26,6 +27,7 @@ fn spec(scale: f64) -> MeshSpec {
                     radius: 10.0,
                 },
                 max_edge: Some(1.0 * scale),
+                skin_edge: None,
             },
         ],
         clip_at_axis: true,

@@ -9,6 +9,7 @@
 //!     regions: vec![RegionInput {
 //!         shape: Shape::Circle { center: [0.0, 0.0], radius: 10.0 },
 //!         max_edge: Some(2.0),
+//!         skin_edge: None,
 //!     }],
 //!     clip_at_axis: true, // axisymmetric: the circle becomes a half disk (a sphere)
 //!     exterior_image: false,
@@ -89,6 +90,10 @@ pub struct RegionInput {
     pub shape: Shape,
     /// Largest edge length inside the region; `None` = the background size.
     pub max_edge: Option<f64>,
+    /// Largest edge at the region's boundary, the size growing from there at the grading
+    /// rate, inward up to `max_edge` and outward into the neighbours (a skin layer for
+    /// eddy currents). `None` = no layer.
+    pub skin_edge: Option<f64>,
 }
 
 /// Which half-planes through the centre cut an outer disk (at most one of left/right and

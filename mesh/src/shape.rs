@@ -27,6 +27,8 @@ pub struct RegionGeometry {
     pub bbox: BBox,
     /// Largest edge inside (the background size when the input gave none).
     pub max_edge: f64,
+    /// Largest edge at the boundary (a skin layer graded inward), if finer than `max_edge`.
+    pub skin_edge: Option<f64>,
 }
 
 impl RegionGeometry {
@@ -446,7 +448,17 @@ pub(crate) fn resolve_all(spec: &MeshSpec) -> Result<(Domain, Vec<RegionGeometry
             }
             None => spec.background_max_edge,
         };
-        let mut loops = polygonise(i, &r.shape, h)?;
+        let skin = match r.skin_edge {
+            Some(s) if pos(s) => (s < h).then_some(s),
+            Some(_) => {
+                return Err(MeshError::DegenerateShape {
+                    region: i,
+                    reason: "skin_edge must be positive and finite",
+                })
+            }
+            None => None,
+        };
+        let mut loops = polygonise(i, &r.shape, skin.unwrap_or(h))?;
         if spec.clip_at_axis {
             loops = loops
                 .iter()
@@ -500,6 +512,7 @@ pub(crate) fn resolve_all(spec: &MeshSpec) -> Result<(Domain, Vec<RegionGeometry
             loops,
             bbox,
             max_edge: h,
+            skin_edge: skin,
         });
     }
     Ok((domain, out))

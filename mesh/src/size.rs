@@ -52,6 +52,23 @@ impl SizeField {
                 grid: SegGrid::new(segs, r.bbox, cell, 64),
             });
         }
+        // Skin layers: a size source on the region's boundary that also acts inside it.
+        for r in regions {
+            let Some(s) = r.skin_edge else { continue };
+            let mut segs = Vec::new();
+            for lp in &r.loops {
+                for k in 0..lp.len() {
+                    segs.push([lp[k], lp[(k + 1) % lp.len()]]);
+                }
+            }
+            let cell = (r.bbox.diag() / 32.0).max(2.0 * s);
+            fine.push(Fine {
+                h: s,
+                id: u32::MAX,
+                bbox: r.bbox,
+                grid: SegGrid::new(segs, r.bbox, cell, 64),
+            });
+        }
         // finest first: their influence prunes the others sooner
         fine.sort_by(|a, b| a.h.total_cmp(&b.h));
         SizeField {

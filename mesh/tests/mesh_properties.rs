@@ -18,6 +18,7 @@ fn rect(min: [f64; 2], max: [f64; 2], h: Option<f64>) -> RegionInput {
     RegionInput {
         shape: Shape::Rect { min, max },
         max_edge: h,
+        skin_edge: None,
     }
 }
 
@@ -25,6 +26,7 @@ fn circle(center: [f64; 2], radius: f64, h: Option<f64>) -> RegionInput {
     RegionInput {
         shape: Shape::Circle { center, radius },
         max_edge: h,
+        skin_edge: None,
     }
 }
 
@@ -76,6 +78,7 @@ fn curved_regions_keep_their_exact_area_to_a_tenth_of_a_percent() {
                     semi_axes: [30.0, 10.0],
                 },
                 max_edge: Some(3.0),
+                skin_edge: None,
             },
             RegionInput {
                 shape: Shape::Annulus {
@@ -84,6 +87,7 @@ fn curved_regions_keep_their_exact_area_to_a_tenth_of_a_percent() {
                     outer: 25.0,
                 },
                 max_edge: Some(5.0),
+                skin_edge: None,
             },
         ],
         false,
@@ -402,6 +406,7 @@ fn bad_shapes_are_errors_not_panics() {
         RegionInput {
             shape: Shape::Polygon(vec![[0.0, 0.0], [1.0, 1.0]]),
             max_edge: None,
+            skin_edge: None,
         },
         circle([0.0, 0.0], 1.0, Some(-1.0)),
     ];
@@ -463,7 +468,7 @@ fn arb_region() -> impl Strategy<Value = RegionInput> {
                 )
             }),
     ];
-    (shape, size).prop_map(|(shape, max_edge)| RegionInput { shape, max_edge })
+    (shape, size).prop_map(|(shape, max_edge)| RegionInput { shape, max_edge, skin_edge: None })
 }
 
 /// A shape with no corner sharper than 60 degrees inside the cell of side 36 centred at
@@ -510,7 +515,7 @@ fn arb_separated() -> impl Strategy<Value = Vec<RegionInput>> {
                 let (x, y) = (-72.0 + 36.0 * (c % 5) as f64, -72.0 + 36.0 * (c / 5) as f64);
                 let size = prop_oneof![Just(None), (1.0f64..6.0).prop_map(Some)];
                 (arb_blunt_shape(x, y), size)
-                    .prop_map(|(shape, max_edge)| RegionInput { shape, max_edge })
+                    .prop_map(|(shape, max_edge)| RegionInput { shape, max_edge, skin_edge: None })
             })
             .collect::<Vec<_>>()
     })
@@ -588,4 +593,44 @@ proptest! {
             Err(e) => prop_assert!(axis, "unexpected error {e}"),
         }
     }
+}
+
+#[test]
+fn skin_layer_is_fine_at_the_surface_and_coarsens_inward() {
+    let mut s = spec(
+        Outer::Rect {
+            min: [-60.0, -60.0],
+            max: [60.0, 60.0],
+        },
+        10.0,
+        vec![circle([0.0, 0.0], 20.0, Some(5.0))],
+        false,
+    );
+    s.regions[0].skin_edge = Some(0.4);
+    let m = generate(&s).unwrap();
+    m.check_invariants(&s).unwrap();
+    let st = m.stats();
+    assert!(st.min_angle_deg >= 25.0, "min angle {}", st.min_angle_deg);
+    assert!(rel(st.regions[1].area, PI * 400.0) < 1e-3);
+    let h = longest_edges(&m);
+    let g = MeshParams::default().grading;
+    let (mut surface, mut centre) = (0.0f64, 0.0f64);
+    for (t, tri) in m.triangles.iter().enumerate() {
+        let c = tri
+            .iter()
+            .map(|&i| m.points[i as usize])
+            .fold([0.0, 0.0], |a, p| [a[0] + p[0] / 3.0, a[1] + p[1] / 3.0]);
+        let d = (c[0].hypot(c[1]) - 20.0).abs();
+        // never coarser than the layer's graded size at the centroid
+        assert!(h[t] <= (0.4 + (g - 1.0) * d) * 1.0001, "h {} at depth {d}", h[t]);
+        if d < 0.2 {
+            surface = surface.max(h[t]);
+        }
+        if c[0].hypot(c[1]) < 3.0 {
+            centre = centre.max(h[t]);
+        }
+    }
+    // (the graded bound above caps them at 0.46 within 0.2 of the surface)
+    assert!(surface > 0.2, "surface elements {surface} far finer than asked");
+    assert!(centre > 2.5, "centre elements {centre} should approach the region's 5");
 }
