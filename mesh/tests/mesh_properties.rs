@@ -468,7 +468,11 @@ fn arb_region() -> impl Strategy<Value = RegionInput> {
                 )
             }),
     ];
-    (shape, size).prop_map(|(shape, max_edge)| RegionInput { shape, max_edge, skin_edge: None })
+    (shape, size).prop_map(|(shape, max_edge)| RegionInput {
+        shape,
+        max_edge,
+        skin_edge: None,
+    })
 }
 
 /// A shape with no corner sharper than 60 degrees inside the cell of side 36 centred at
@@ -514,8 +518,11 @@ fn arb_separated() -> impl Strategy<Value = Vec<RegionInput>> {
             .map(|c| {
                 let (x, y) = (-72.0 + 36.0 * (c % 5) as f64, -72.0 + 36.0 * (c / 5) as f64);
                 let size = prop_oneof![Just(None), (1.0f64..6.0).prop_map(Some)];
-                (arb_blunt_shape(x, y), size)
-                    .prop_map(|(shape, max_edge)| RegionInput { shape, max_edge, skin_edge: None })
+                (arb_blunt_shape(x, y), size).prop_map(|(shape, max_edge)| RegionInput {
+                    shape,
+                    max_edge,
+                    skin_edge: None,
+                })
             })
             .collect::<Vec<_>>()
     })
@@ -622,7 +629,11 @@ fn skin_layer_is_fine_at_the_surface_and_coarsens_inward() {
             .fold([0.0, 0.0], |a, p| [a[0] + p[0] / 3.0, a[1] + p[1] / 3.0]);
         let d = (c[0].hypot(c[1]) - 20.0).abs();
         // never coarser than the layer's graded size at the centroid
-        assert!(h[t] <= (0.4 + (g - 1.0) * d) * 1.0001, "h {} at depth {d}", h[t]);
+        assert!(
+            h[t] <= (0.4 + (g - 1.0) * d) * 1.0001,
+            "h {} at depth {d}",
+            h[t]
+        );
         if d < 0.2 {
             surface = surface.max(h[t]);
         }
@@ -631,6 +642,12 @@ fn skin_layer_is_fine_at_the_surface_and_coarsens_inward() {
         }
     }
     // (the graded bound above caps them at 0.46 within 0.2 of the surface)
-    assert!(surface > 0.2, "surface elements {surface} far finer than asked");
-    assert!(centre > 2.5, "centre elements {centre} should approach the region's 5");
+    assert!(
+        surface > 0.2,
+        "surface elements {surface} far finer than asked"
+    );
+    assert!(
+        centre > 2.5,
+        "centre elements {centre} should approach the region's 5"
+    );
 }

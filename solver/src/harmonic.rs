@@ -21,17 +21,14 @@ use std::sync::Arc;
 use std::time::Instant;
 
 use faer::c64;
-use faer::linalg::solvers::Solve;
-use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
-use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
-use faer::Mat;
 use rayon::prelude::*;
 
 use crate::assembly::Pattern;
 use crate::discretisation::{Discretisation, Order, FIXED};
 use crate::element::{local_matrices, Basis, Local, Reluctivity, P1, P2};
 use crate::field::{Field, Locator};
-use crate::linsolve::RESIDUAL_TOLERANCE;
+use crate::krylov::gmres;
+use crate::linsolve::{CholeskyAnalysis, RESIDUAL_TOLERANCE};
 use crate::problem::{Problem, Spread};
 use crate::statics::{background_potential, Density, Timings};
 use crate::{Formulation, SolveError, MU0};
@@ -64,6 +61,9 @@ pub struct HarmonicSolution {
     pub timings: Timings,
     pub nnz: usize,
     pub max_residual: f64,
+    /// Preconditioned GMRES iterations over all inner solves, and the number of solves.
+    pub krylov_iterations: usize,
+    pub krylov_solves: usize,
 }
 
 impl HarmonicSolution {
@@ -95,6 +95,69 @@ impl HarmonicSolution {
         (c64::new(0.0, -self.omega() * sigma) * v, a.weight, a.x)
     }
 
+    /// Σ c_i (field_i, ψ_i): a phasor combination of unit solutions (complex coefficients).
+    pub fn combine(&self, parts: &[(c64, &[Field; 2], &[c64])]) -> ([Field; 2], Vec<c64>) {
+        let mut re: Vec<(f64, &Field)> = Vec::new();
+        let mut im: Vec<(f64, &Field)> = Vec::new();
+        let mut psi = vec![c64::new(0.0, 0.0); self.constraints.len()];
+        for (k, f, p) in parts {
+            re.push((k.re, &f[0]));
+            re.push((-k.im, &f[1]));
+            im.push((k.im, &f[0]));
+            im.push((k.re, &f[1]));
+            for (a, b) in psi.iter_mut().zip(p.iter()) {
+                *a += *k * *b;
+            }
+        }
+        let zero = || Field {
+            disc: self.disc.clone(),
+            locator: self.locator.clone(),
+            nu: self.nu.clone(),
+            a: vec![0.0; self.disc.points.len()],
+        };
+        (
+            [
+                Field::combine(&re).unwrap_or_else(zero),
+                Field::combine(&im).unwrap_or_else(zero),
+            ],
+            psi,
+        )
+    }
+
+    /// Time-average induced (and, in solid conductors, total) loss ∫|J|²/σ dV per region id:
+    /// W per metre of depth (planar) or W (axisymmetric).
+    pub fn region_losses(&self, field: &[Field; 2], psi: &[c64]) -> Vec<f64> {
+        let mut loss = vec![0.0; self.sigma.len()];
+        for c in 0..self.disc.n_cells() {
+            let r = self.disc.cell_region[c] as usize;
+            let s = self.sigma[r];
+            if s <= 0.0 || self.disc.is_image(c) {
+                continue;
+            }
+            let area = crate::element::Geometry::new(self.disc.vertices(c)).area;
+            for q in crate::quadrature::DEGREE6.iter() {
+                let (j, w, _) = self.eddy_density(field, psi, c, q.l);
+                loss[r] += j.norm_sqr() / s * q.w * area * w;
+            }
+        }
+        loss
+    }
+
+    /// Current density phasor at the centroid of every cell (0 where σ = 0; stranded
+    /// windings' imposed density is not included).
+    pub fn cell_current_density(&self, field: &[Field; 2], psi: &[c64]) -> Vec<c64> {
+        (0..self.disc.n_cells())
+            .map(|c| {
+                let r = self.disc.cell_region[c] as usize;
+                if self.sigma[r] <= 0.0 || self.disc.is_image(c) {
+                    c64::new(0.0, 0.0)
+                } else {
+                    self.eddy_density(field, psi, c, [1.0 / 3.0; 3]).0
+                }
+            })
+            .collect()
+    }
+
     /// Impedance seen at a solid conductor's terminals for its unit field: Z = jωψ·s with
     /// s = depth (planar) or 2π (axisymmetric).
     pub fn conductor_impedance(&self, winding: usize, depth: f64) -> Option<c64> {
@@ -111,6 +174,40 @@ impl HarmonicSolution {
 }
 
 type CLocal = Vec<c64>;
+
+/// Relative residual asked of each inner GMRES solve.
+pub const INNER_TOLERANCE: f64 = 1e-11;
+
+/// Gaussian elimination with partial pivoting of a small dense complex system.
+fn dense_solve(mut a: Vec<Vec<c64>>, b: &mut [c64]) -> Option<Vec<c64>> {
+    let n = b.len();
+    for k in 0..n {
+        let p = (k..n).max_by(|&i, &j| a[i][k].norm().total_cmp(&a[j][k].norm()))?;
+        if a[p][k].norm() == 0.0 {
+            return None;
+        }
+        a.swap(k, p);
+        b.swap(k, p);
+        for i in k + 1..n {
+            let f = a[i][k] / a[k][k];
+            for j in k..n {
+                let t = a[k][j];
+                a[i][j] -= f * t;
+            }
+            let t = b[k];
+            b[i] -= f * t;
+        }
+    }
+    let mut x = vec![c64::new(0.0, 0.0); n];
+    for i in (0..n).rev() {
+        let mut s = b[i];
+        for j in i + 1..n {
+            s -= a[i][j] * x[j];
+        }
+        x[i] = s / a[i][i];
+    }
+    Some(x)
+}
 
 pub fn solve_harmonic(p: &Problem, frequency: f64) -> Result<HarmonicSolution, SolveError> {
     match p.order {
@@ -183,24 +280,19 @@ fn solve_with<const N: usize, B: Basis<N>>(
             }
         }
     }
+    // Constraint index of every cell (FIXED when its region carries none).
     let mut extra = vec![FIXED; d.n_cells()];
-    if !constraints.is_empty() {
-        for c in 0..d.n_cells() {
-            if let Some(k) = constraints
-                .iter()
-                .position(|k| k.region == d.cell_region[c])
-            {
-                extra[c] = (d.n_dofs + k) as u32;
-            }
+    for c in 0..d.n_cells() {
+        if let Some(k) = constraints
+            .iter()
+            .position(|k| k.region == d.cell_region[c])
+        {
+            extra[c] = k as u32;
         }
     }
     let nk = constraints.len();
-    let pattern = if nk > 0 {
-        Pattern::with_extras(&d, &extra, nk)
-    } else {
-        Pattern::new(&d)
-    };
-    let n = pattern.n;
+    let nd = d.n_dofs;
+    let pattern = Pattern::new(&d);
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
@@ -218,37 +310,51 @@ fn solve_with<const N: usize, B: Basis<N>>(
         }
         b
     };
-    let k_local = if nk > 0 { N + 1 } else { N };
+    // K + jωσM and its real preconditioner K + ωσM on the node pattern.
     let values: Vec<c64> = pattern.assemble(d.n_cells(), |c| {
         let l = &loc[c];
         let s = sigma[d.cell_region[c] as usize];
-        let mut m: CLocal = vec![c64::new(0.0, 0.0); k_local * k_local];
+        let mut m: CLocal = vec![c64::new(0.0, 0.0); N * N];
         for i in 0..N {
             for j in 0..N {
-                m[i * k_local + j] = c64::new(l.stiffness[i][j], omega * s * l.mass[i][j]);
+                m[i * N + j] = c64::new(l.stiffness[i][j], omega * s * l.mass[i][j]);
             }
-        }
-        if nk > 0 && extra[c] != FIXED {
-            let b = border(l, s);
-            for i in 0..N {
-                m[i * k_local + N] = -jw * b[i];
-                m[N * k_local + i] = -jw * b[i];
-            }
-            m[N * k_local + N] = jw * (s * l.measure_inv_r2);
         }
         Some(m)
     });
-    // Right-hand sides: each winding at 1 A, then the background.
+    let pvalues: Vec<f64> = values.iter().map(|v| v.re + v.im).collect();
+    // Border: the constraint rows −jω b_kᵀ A + jω d_k ψ_k, b_k = ∫σ N g w, d_k = ∫σ g² w.
+    let mut bvec = vec![vec![0.0; nd]; nk];
+    let mut dk = vec![0.0; nk];
+    for c in 0..d.n_cells() {
+        if extra[c] == FIXED {
+            continue;
+        }
+        let k = extra[c] as usize;
+        let l = &loc[c];
+        let s = sigma[d.cell_region[c] as usize];
+        let b = border(l, s);
+        for (i, &node) in d.cell(c).iter().enumerate() {
+            let dof = d.node_dof[node as usize];
+            if dof != FIXED {
+                bvec[k][dof as usize] += b[i];
+            }
+        }
+        dk[k] += s * l.measure_inv_r2;
+    }
+    // Right-hand sides (node part, constraint part): each winding at 1 A, then the
+    // background.
     let mut area = vec![0.0; d.region_count];
     for (c, l) in loc.iter().enumerate() {
         area[d.cell_region[c] as usize] += l.area;
     }
     let zero = c64::new(0.0, 0.0);
     let scale = if axi { TAU } else { 1.0 };
-    let mut rhs: Vec<Vec<c64>> = Vec::new();
+    let mut rhs: Vec<(Vec<c64>, Vec<c64>)> = Vec::new();
     let mut densities = Vec::new();
     for (w, wd) in p.windings.iter().enumerate() {
-        let mut f = vec![zero; n];
+        let mut f = vec![zero; nd];
+        let mut g = vec![zero; nk];
         let mut dens = Vec::new();
         for wr in &wd.regions {
             match wr.spread {
@@ -284,16 +390,17 @@ fn solve_with<const N: usize, B: Basis<N>>(
                         .iter()
                         .position(|k| k.winding == Some(w))
                         .expect("constraint");
-                    f[d.n_dofs + k] += c64::new(wr.turns * scale, 0.0);
+                    g[k] += c64::new(wr.turns * scale, 0.0);
                 }
             }
         }
         densities.push(dens);
-        rhs.push(f);
+        rhs.push((f, g));
     }
     if let Some(b) = p.background {
         let nu0 = 1.0 / MU0;
-        let mut f = vec![zero; n];
+        let mut f = vec![zero; nd];
+        let mut g = vec![zero; nk];
         for (c, l) in loc.iter().enumerate() {
             if Some(d.cell_region[c]) == image {
                 continue;
@@ -322,43 +429,96 @@ fn solve_with<const N: usize, B: Basis<N>>(
             if extra[c] != FIXED {
                 let bb = border(l, s);
                 let sum: f64 = (0..N).map(|i| bb[i] * ab[i]).sum();
-                f[extra[c] as usize] += jw * sum;
+                g[extra[c] as usize] += jw * sum;
             }
         }
-        rhs.push(f);
+        rhs.push((f, g));
     }
     t.assemble = t0.elapsed().as_secs_f64();
 
+    // Factorise the real preconditioner once.
     let t0 = Instant::now();
-    let sym = SymbolicSparseColMatRef::new_checked(n, n, &pattern.col_ptr, None, &pattern.row_idx);
-    let symbolic = SymbolicLu::try_new(sym)
-        .map_err(|e| SolveError::Factorisation(format!("symbolic LU: {e:?}")))?;
+    let analysis = CholeskyAnalysis::new(&pattern)?;
     t.symbolic = t0.elapsed().as_secs_f64();
     let t0 = Instant::now();
-    let mat = SparseColMatRef::new(sym, &values);
-    let lu = Lu::try_new_with_symbolic(symbolic, mat).map_err(|_| SolveError::Singular)?;
+    let chol = analysis.factor(&pattern, &pvalues)?;
     t.factor = t0.elapsed().as_secs_f64();
+
     let t0 = Instant::now();
-    let xs: Vec<Vec<c64>> = rhs
-        .iter()
-        .map(|b| {
-            let mut x = Mat::<c64>::from_fn(n, 1, |i, _| b[i]);
-            lu.solve_in_place(x.as_mut());
-            (0..n).map(|i| x[(i, 0)]).collect()
-        })
-        .collect();
-    t.solve = t0.elapsed().as_secs_f64();
-    let mut max_residual: f64 = 0.0;
-    for (x, b) in xs.iter().zip(&rhs) {
-        let ax = pattern.mul(&values, x);
-        let num: f64 = ax
+    let apply = |x: &[c64]| pattern.mul(&values, x);
+    let precond = |v: &[c64]| -> Vec<c64> {
+        let re: Vec<f64> = v.iter().map(|z| z.re).collect();
+        let im: Vec<f64> = v.iter().map(|z| z.im).collect();
+        let out = chol.solve(&[re, im]);
+        out[0]
             .iter()
-            .zip(b)
-            .map(|(a, b)| (a - b).norm_sqr())
-            .sum::<f64>()
-            .sqrt();
-        let den: f64 = b.iter().map(|v| v.norm_sqr()).sum::<f64>().sqrt();
-        let r = if den > 0.0 { num / den } else { num };
+            .zip(&out[1])
+            .map(|(a, b)| c64::new(*a, *b))
+            .collect()
+    };
+    let mut iterations = 0;
+    let mut inner = |f: &[c64]| -> Result<Vec<c64>, SolveError> {
+        let (x, rep) = gmres(f, apply, precond, INNER_TOLERANCE, 60, 3000);
+        iterations += rep.iterations;
+        if rep.relative_residual.is_nan() || rep.relative_residual > INNER_TOLERANCE * 10.0 {
+            return Err(SolveError::Residual {
+                residual: rep.relative_residual,
+                tolerance: INNER_TOLERANCE,
+            });
+        }
+        Ok(x)
+    };
+    // Schur complement of the constraints, C = −jω b: Y_k = Ã⁻¹ (jω b_k) so that
+    // A = X0 + Σ Y_k ψ_k, and S ψ = g − Cᵀ X0 with S = D + Cᵀ Y.
+    let mut ys = Vec::with_capacity(nk);
+    for b in &bvec {
+        let col: Vec<c64> = b.iter().map(|v| jw * *v).collect();
+        ys.push(inner(&col)?);
+    }
+    let row = |k: usize, x: &[c64]| -> c64 {
+        bvec[k].iter().zip(x).fold(zero, |s, (b, x)| s + x * *b) * (-jw)
+    };
+    let mut schur = vec![vec![zero; nk]; nk];
+    for i in 0..nk {
+        for j in 0..nk {
+            schur[i][j] = if i == j { jw * dk[i] } else { zero } + row(i, &ys[j]);
+        }
+    }
+    let mut xs: Vec<Vec<c64>> = Vec::with_capacity(rhs.len());
+    for (f, g) in &rhs {
+        let x0 = inner(f)?;
+        let mut r: Vec<c64> = (0..nk).map(|k| g[k] - row(k, &x0)).collect();
+        let psi = dense_solve(schur.clone(), &mut r).ok_or(SolveError::Singular)?;
+        let mut x = x0;
+        for (k, y) in ys.iter().enumerate() {
+            for (xi, yi) in x.iter_mut().zip(y) {
+                *xi += psi[k] * yi;
+            }
+        }
+        x.extend_from_slice(&psi);
+        xs.push(x);
+    }
+    t.solve = t0.elapsed().as_secs_f64();
+    // Residual of the whole bordered system.
+    let mut max_residual: f64 = 0.0;
+    for (x, (f, g)) in xs.iter().zip(&rhs) {
+        let (a, psi) = x.split_at(nd);
+        let mut ra = pattern.mul(&values, a);
+        for (k, b) in bvec.iter().enumerate() {
+            for (ri, bi) in ra.iter_mut().zip(b) {
+                *ri -= jw * *bi * psi[k];
+            }
+        }
+        let mut num: f64 = ra.iter().zip(f).map(|(a, b)| (a - b).norm_sqr()).sum();
+        for k in 0..nk {
+            num += (row(k, a) + jw * dk[k] * psi[k] - g[k]).norm_sqr();
+        }
+        let den: f64 = f.iter().chain(g).map(|v| v.norm_sqr()).sum::<f64>().sqrt();
+        let r = if den > 0.0 {
+            num.sqrt() / den
+        } else {
+            num.sqrt()
+        };
         max_residual = max_residual.max(r);
         if r.is_nan() || r > RESIDUAL_TOLERANCE {
             return Err(SolveError::Residual {
@@ -367,6 +527,8 @@ fn solve_with<const N: usize, B: Basis<N>>(
             });
         }
     }
+    let krylov_iterations = iterations;
+    let krylov_solves = nk + rhs.len();
     let nu = Arc::new(nu);
     let disc = Arc::new(d);
     let locator = Arc::new(Locator::new(&disc));
@@ -440,5 +602,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
         timings: t,
         nnz: pattern.nnz(),
         max_residual,
+        krylov_iterations,
+        krylov_solves,
     })
 }

@@ -48,6 +48,7 @@ pub mod discretisation;
 pub mod element;
 pub mod field;
 pub mod harmonic;
+pub mod krylov;
 pub mod linsolve;
 pub mod problem;
 pub mod quadrature;
