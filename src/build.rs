@@ -48,6 +48,31 @@ pub struct Model {
     pub formulation: Formulation,
     pub order: Order,
     pub dirichlet: Vec<Side>,
+    /// Skin depth (m) and the surface element size used (m) of every part or conductor
+    /// that carries eddy currents, by name (empty when static).
+    pub skin: Vec<SkinLayer>,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct SkinLayer {
+    pub name: String,
+    pub depth_m: f64,
+    pub surface_size_m: f64,
+}
+
+/// Skin depth δ = √(2/(ωμσ)) (m).
+pub fn skin_depth(frequency: f64, mu_r: f64, sigma: f64) -> f64 {
+    (2.0 / (std::f64::consts::TAU * frequency * fluxpick_solver::MU0 * mu_r * sigma)).sqrt()
+}
+
+/// Default surface element size as a fraction of the skin depth, by element order
+/// (second order: a third, checked against the exact round-wire and plate solutions in
+/// the solver's tests; first order: a sixth).
+fn skin_fraction(order: Order) -> f64 {
+    match order {
+        Order::Quadratic => 1.0 / 3.0,
+        Order::Linear => 1.0 / 6.0,
+    }
 }
 
 fn side_of(s: DomainSide) -> Side {
@@ -88,12 +113,44 @@ impl Model {
         let h = case.domain.mesh_size;
         let mut regions = Vec::new();
         let mut owners = vec![Owner::Air];
+        let order = if case.element_order == 1 {
+            Order::Linear
+        } else {
+            Order::Quadratic
+        };
+        let mut skin = Vec::new();
+        // A skin layer on every region that carries eddy currents at f > 0.
+        let mut layer = |r: &mut RegionInput, name: &str, material: &str, own: Option<f64>| {
+            let Some(m) = case.materials.get(material) else {
+                return;
+            };
+            if case.frequency <= 0.0 || m.conductivity <= 0.0 {
+                return;
+            }
+            let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
+            let size = own.unwrap_or(depth * skin_fraction(order));
+            let inside = r.max_edge.unwrap_or(h);
+            if size < inside {
+                r.skin_edge = Some(size);
+            }
+            skin.push(SkinLayer {
+                name: name.to_string(),
+                depth_m: depth,
+                surface_size_m: size.min(inside),
+            });
+        };
         for (i, p) in case.parts.iter().enumerate() {
-            regions.push(region(&p.shape, p.mesh_size, h));
+            let mut r = region(&p.shape, p.mesh_size, h);
+            layer(&mut r, &p.name, &p.material, p.skin_mesh_size);
+            regions.push(r);
             owners.push(Owner::Part(i));
         }
         for (i, c) in case.conductors.iter().enumerate() {
-            regions.push(region(&c.shape, c.mesh_size, h));
+            let mut r = region(&c.shape, c.mesh_size, h);
+            if c.kind == ConductorKind::Solid {
+                layer(&mut r, &c.name, &c.material, c.skin_mesh_size);
+            }
+            regions.push(r);
             owners.push(Owner::Conductor(i));
         }
         for (i, c) in case.coils.iter().enumerate() {
@@ -215,12 +272,9 @@ impl Model {
             } else {
                 Formulation::Planar
             },
-            order: if case.element_order == 1 {
-                Order::Linear
-            } else {
-                Order::Quadratic
-            },
+            order,
             dirichlet,
+            skin,
         })
     }
 

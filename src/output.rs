@@ -78,7 +78,7 @@ pub fn write_mesh_vtu(path: &Path, case: &Case, model: &Model, mesh: &Mesh) -> s
 /// real and imaginary rms parts at f > 0); cell data B at the centroid (T), |B| (T rms), μr,
 /// region id.
 pub fn write_field_vtu(path: &Path, case: &Case, run: &Run) -> std::io::Result<()> {
-    let d = &run.solution.disc;
+    let d = &run.disc;
     let harmonic = case.frequency > 0.0;
     let cells: Vec<usize> = (0..d.n_cells()).filter(|&c| !d.is_image(c)).collect();
     let mut new_id = vec![u32::MAX; d.points.len()];
@@ -134,6 +134,18 @@ pub fn write_field_vtu(path: &Path, case: &Case, run: &Run) -> std::io::Result<(
         cell_data.push(DataArray::vector2("B", &b_re));
     }
     cell_data.push(DataArray::scalar("B_abs", babs));
+    // Current density (A/m², rms): induced, solid-conductor and stranded winding currents.
+    let j: Vec<_> = cells.iter().map(|&c| run.current_density[c]).collect();
+    if harmonic {
+        cell_data.push(DataArray::scalar("J_re", j.iter().map(|z| z.re).collect()));
+        cell_data.push(DataArray::scalar("J_im", j.iter().map(|z| z.im).collect()));
+        cell_data.push(DataArray::scalar(
+            "J_abs",
+            j.iter().map(|z| z.norm()).collect(),
+        ));
+    } else {
+        cell_data.push(DataArray::scalar("J", j.iter().map(|z| z.re).collect()));
+    }
     let materials = run.model.materials(case).unwrap_or_default();
     cell_data.push(DataArray::scalar(
         "mu_r",

@@ -10,9 +10,15 @@ use std::f64::consts::TAU;
 use std::time::Instant;
 
 use fluxpick_mesh::Mesh;
-use fluxpick_postproc::figures::{domain_energy, flux_linkage, inductances, region_flux};
+use std::sync::Arc;
+
+use fluxpick_postproc::figures::{domain_energy, flux_linkage, region_flux};
 use fluxpick_postproc::{probe, wire};
-use fluxpick_solver::{solve_static, Field, Formulation, Problem, SolveError, StaticSolution};
+use fluxpick_solver::{
+    solve_harmonic, solve_static, Discretisation, Field, Formulation, HarmonicSolution, Problem,
+    SolveError, StaticSolution,
+};
+use num_complex::Complex64 as C;
 use serde::Serialize;
 
 use crate::build::{BuildError, Model, Owner};
@@ -28,15 +34,13 @@ pub enum StudyError {
     Hidden(String),
     #[error("solve failed: {0}")]
     Solve(#[from] SolveError),
-    #[error("part `{0}` is conductive (σ > 0) at frequency > 0: eddy currents need the time-harmonic solver, which this version does not have; set its conductivity to 0 to neglect them")]
-    EddyCurrentsUnsupported(String),
 }
 
 impl StudyError {
     /// Exit status: 2 for a case the program cannot take, 1 for a failed solve.
     pub fn exit_code(&self) -> i32 {
         match self {
-            StudyError::Build(_) | StudyError::EddyCurrentsUnsupported(_) => 2,
+            StudyError::Build(_) => 2,
             StudyError::Hidden(_) => 2,
             StudyError::Mesh(_) | StudyError::Solve(_) => 1,
         }
@@ -65,16 +69,28 @@ pub struct PartFigures {
     pub b_sat_t: Option<f64>,
     /// Peak |B| over the material's saturation flux density.
     pub b_peak_over_sat: Option<f64>,
+    /// Skin depth of the part's material at the case frequency (conductive parts, f > 0).
+    pub skin_depth_m: Option<f64>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
 pub struct ConductorFigures {
     pub current_a: f64,
+    pub phase_deg: f64,
     pub b_mean_t: f64,
     pub b_peak_t: f64,
+    /// Loss in the conductor with every source on (W, for the model depth).
     pub loss_w: f64,
+    /// AC resistance from loss / I² (at I = 0: from its own 1 A alone).
     pub resistance_ohm: f64,
+    pub dc_resistance_ohm: f64,
+    pub ac_dc_ratio: Option<f64>,
+    /// 2W/I² of its own field inside the conductor (internal inductance).
+    pub internal_inductance_h: f64,
+    /// Flux route (at f > 0: Im(Z)/ω) for the model's extent: in planar form the loop
+    /// closes at the outer boundary (or at infinity for an open one: grows with its size).
     pub inductance_h: f64,
+    pub skin_depth_m: Option<f64>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -108,6 +124,26 @@ pub struct ProbeFigures {
     pub b_t: Vec<Option<[f64; 2]>>,
     /// |B| per point (T rms).
     pub b_abs_t: Vec<Option<f64>>,
+    /// At f > 0: the ellipse the field vector traces per point.
+    pub ellipse: Option<Vec<Option<Ellipse>>>,
+}
+
+/// The ellipse traced by a rotating (or alternating: minor 0) field vector.
+#[derive(Clone, Copy, Debug, Serialize, PartialEq)]
+pub struct Ellipse {
+    /// Semi-axes, rms (peak / √2), T.
+    pub major_t: f64,
+    pub minor_t: f64,
+    /// Direction of the major axis from +x (degrees, −90..90).
+    pub angle_deg: f64,
+}
+
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct SkinFigures {
+    pub name: String,
+    pub skin_depth_m: f64,
+    /// Element size used at the surface.
+    pub surface_element_m: f64,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -126,6 +162,8 @@ pub struct SolveFigures {
     pub post_s: f64,
     pub nonzeros: usize,
     pub max_relative_residual: f64,
+    pub method: String,
+    pub krylov_iterations: Option<usize>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -142,6 +180,7 @@ pub struct Results {
     pub coils: BTreeMap<String, CoilFigures>,
     pub inductance_matrix: InductanceMatrix,
     pub probes: BTreeMap<String, ProbeFigures>,
+    pub skin_layers: Vec<SkinFigures>,
     pub solve: SolveFigures,
     pub warnings: Vec<String>,
 }
@@ -150,20 +189,12 @@ pub struct Results {
 pub struct Run {
     pub model: Model,
     pub mesh: Mesh,
-    pub solution: StaticSolution,
+    pub disc: Arc<Discretisation>,
     /// Real and imaginary parts of the total field (imaginary zero when static).
     pub field: [Field; 2],
+    /// Current density per cell (A/m² rms phasor; every cell, the image's zero).
+    pub current_density: Vec<C>,
     pub results: Results,
-}
-
-/// A phasor of rms magnitude `m` at `phase_deg`.
-fn phasor(m: f64, phase_deg: f64) -> [f64; 2] {
-    let p = phase_deg.to_radians();
-    [m * p.cos(), m * p.sin()]
-}
-
-fn magnitude_phase(z: [f64; 2]) -> (f64, f64) {
-    (z[0].hypot(z[1]), z[1].atan2(z[0]).to_degrees())
 }
 
 fn centroid(shape: &Shape) -> [f64; 2] {
@@ -214,29 +245,81 @@ pub fn mesh_model(case: &Case, model: &Model) -> Result<Mesh, StudyError> {
     })
 }
 
-pub fn run(case: &Case) -> Result<Run, StudyError> {
-    let omega = TAU * case.frequency;
-    let harmonic = case.frequency > 0.0;
-    let mut warnings = Vec::new();
-    if harmonic {
-        for p in &case.parts {
-            if case
-                .materials
-                .get(&p.material)
-                .is_some_and(|m| m.conductivity > 0.0)
-            {
-                return Err(StudyError::EddyCurrentsUnsupported(p.name.clone()));
-            }
-        }
-        for c in &case.conductors {
-            if c.kind == ConductorKind::Solid {
-                warnings.push(format!(
-                    "conductor `{}`: solid at {} Hz, solved with uniform current (skin and proximity effects neglected)",
-                    c.name, case.frequency
-                ));
-            }
+/// How the field was solved.
+enum Solved {
+    Static(StaticSolution),
+    Harmonic(HarmonicSolution),
+}
+
+/// A phasor field: real and imaginary parts (the imaginary part zero when static) and the
+/// solid-conductor constraint values ψ of a harmonic solve.
+#[derive(Clone)]
+struct Phasor {
+    f: [Field; 2],
+    psi: Vec<C>,
+}
+
+fn zero_like(f: &Field) -> Field {
+    Field::combine(&[(0.0, f)]).expect("one part")
+}
+
+/// Σ c_i P_i with complex coefficients.
+fn combine(parts: &[(C, &Phasor)], like: &Field, nk: usize) -> Phasor {
+    let mut re: Vec<(f64, &Field)> = Vec::new();
+    let mut im: Vec<(f64, &Field)> = Vec::new();
+    let mut psi = vec![C::new(0.0, 0.0); nk];
+    for (k, p) in parts {
+        re.push((k.re, &p.f[0]));
+        re.push((-k.im, &p.f[1]));
+        im.push((k.im, &p.f[0]));
+        im.push((k.re, &p.f[1]));
+        for (a, b) in psi.iter_mut().zip(&p.psi) {
+            *a += *k * *b;
         }
     }
+    Phasor {
+        f: [
+            Field::combine(&re).unwrap_or_else(|| zero_like(like)),
+            Field::combine(&im).unwrap_or_else(|| zero_like(like)),
+        ],
+        psi,
+    }
+}
+
+/// Does the case need the time-harmonic solve (eddy currents somewhere)?
+pub fn has_eddy_currents(case: &Case) -> bool {
+    let sigma = |m: &str| case.materials.get(m).map_or(0.0, |m| m.conductivity);
+    case.frequency > 0.0
+        && (case.parts.iter().any(|p| sigma(&p.material) > 0.0)
+            || case
+                .conductors
+                .iter()
+                .any(|c| c.kind == ConductorKind::Solid && sigma(&c.material) > 0.0))
+}
+
+/// Field ellipse of an rms phasor vector u + jv: semi-axes (rms, i.e. peak / √2) and the
+/// direction of the major axis in degrees from +x.
+pub fn field_ellipse(u: [f64; 2], v: [f64; 2]) -> Ellipse {
+    // eigen-decomposition of G = u uᵀ + v vᵀ
+    let (a, b, c) = (
+        u[0] * u[0] + v[0] * v[0],
+        u[0] * u[1] + v[0] * v[1],
+        u[1] * u[1] + v[1] * v[1],
+    );
+    let m = 0.5 * (a + c);
+    let r = (0.25 * (a - c) * (a - c) + b * b).sqrt();
+    let angle = 0.5 * (2.0 * b).atan2(a - c);
+    Ellipse {
+        major_t: (m + r).max(0.0).sqrt(),
+        minor_t: (m - r).max(0.0).sqrt(),
+        angle_deg: angle.to_degrees(),
+    }
+}
+
+pub fn run(case: &Case) -> Result<Run, StudyError> {
+    let omega = TAU * case.frequency;
+    let ac = case.frequency > 0.0;
+    let warnings = Vec::new();
     let model = Model::new(case)?;
     let t0 = Instant::now();
     let mesh = mesh_model(case, &model)?;
@@ -256,48 +339,130 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         background: bvec,
         dirichlet: model.dirichlet.clone(),
     };
-    let sol = solve_static(&problem)?;
+    let solved = if has_eddy_currents(case) {
+        Solved::Harmonic(solve_harmonic(&problem, case.frequency)?)
+    } else {
+        Solved::Static(solve_static(&problem)?)
+    };
     let t0 = Instant::now();
+    // Unit solutions (each winding at 1 A rms, phase 0; the background at its b, phase 0).
+    let (disc, unit, background, densities, nk) = match &solved {
+        Solved::Static(s) => (
+            s.disc.clone(),
+            s.unit
+                .iter()
+                .map(|f| Phasor {
+                    f: [f.clone(), zero_like(f)],
+                    psi: vec![],
+                })
+                .collect::<Vec<_>>(),
+            s.background.as_ref().map(|f| Phasor {
+                f: [f.clone(), zero_like(f)],
+                psi: vec![],
+            }),
+            s.densities.clone(),
+            0,
+        ),
+        Solved::Harmonic(h) => (
+            h.disc.clone(),
+            h.unit
+                .iter()
+                .zip(&h.unit_psi)
+                .map(|(f, p)| Phasor {
+                    f: f.clone(),
+                    psi: p.clone(),
+                })
+                .collect(),
+            h.background.as_ref().map(|f| Phasor {
+                f: f.clone(),
+                psi: h.background_psi.clone(),
+            }),
+            h.densities.clone(),
+            h.constraints.len(),
+        ),
+    };
+    let like = match (&unit.first(), &background) {
+        (Some(u), _) => u.f[0].clone(),
+        (None, Some(b)) => b.f[0].clone(),
+        (None, None) => return Err(StudyError::Solve(SolveError::NoUnknowns)),
+    };
     // Phasor currents of every winding (coils first, then conductors), rms.
-    let mut currents: Vec<[f64; 2]> = case
+    let mut currents: Vec<C> = case
         .coils
         .iter()
-        .map(|c| phasor(c.current, c.phase_deg))
+        .map(|c| C::from_polar(c.current, c.phase_deg.to_radians()))
         .collect();
     currents.extend(
         case.conductors
             .iter()
-            .map(|c| phasor(c.current, c.phase_deg)),
+            .map(|c| C::from_polar(c.current, c.phase_deg.to_radians())),
     );
-    let bg_phase = case
-        .background
-        .as_ref()
-        .map_or(0.0, |b| b.phase_deg)
-        .to_radians();
-    let combine = |k: usize| -> Field {
-        let mut parts: Vec<(f64, &Field)> = Vec::new();
-        if let Some(b) = &sol.background {
-            parts.push((
-                if k == 0 {
-                    bg_phase.cos()
-                } else {
-                    bg_phase.sin()
-                },
-                b,
-            ));
-        }
-        for (i, f) in currents.iter().zip(&sol.unit) {
-            parts.push((i[k], f));
-        }
-        Field::combine(&parts).unwrap_or_else(|| sol.total(&[]))
+    let mut parts_list: Vec<(C, &Phasor)> = currents.iter().copied().zip(unit.iter()).collect();
+    if let (Some(b), Some(bg)) = (&case.background, &background) {
+        parts_list.push((C::from_polar(1.0, b.phase_deg.to_radians()), bg));
+    }
+    let total = combine(&parts_list, &like, nk);
+    let field = total.f.clone();
+    let axi = case.symmetry == Symmetry::Axisymmetric;
+    let depth = if axi { 1.0 } else { case.depth };
+    let quad = disc.order == fluxpick_solver::Order::Quadratic;
+
+    // Flux linkage (per metre of depth in planar form) of winding i in a phasor field.
+    let harmonic = match &solved {
+        Solved::Harmonic(h) => Some(h),
+        Solved::Static(_) => None,
     };
-    let field = [combine(0), combine(1)];
-    let depth = if case.symmetry == Symmetry::Planar {
-        case.depth
-    } else {
-        1.0
+    let linkage = |i: usize, p: &Phasor| -> C {
+        if densities[i].is_empty() {
+            // a solid conductor of the harmonic solve: λ = ψ (planar) or 2πψ
+            let h = harmonic.expect("only solid conductors of a harmonic solve lack a density");
+            let k = h
+                .constraints
+                .iter()
+                .position(|k| k.winding == Some(i))
+                .expect("constraint of a solid conductor");
+            p.psi[k] * if axi { TAU } else { 1.0 }
+        } else {
+            C::new(
+                flux_linkage(&p.f[0], &densities[i]),
+                flux_linkage(&p.f[1], &densities[i]),
+            )
+        }
     };
-    let quad = sol.disc.order == fluxpick_solver::Order::Quadratic;
+    let energy2 = |a: &Phasor, b: &Phasor| -> f64 {
+        // ∫ν Re(B_a · B_b*) dV: the energy route to L_ab
+        a.f[0].coenergy_with(&b.f[0], |_| true) + a.f[1].coenergy_with(&b.f[1], |_| true)
+    };
+    let nw = unit.len();
+    let mut flux_m = vec![vec![0.0; nw]; nw];
+    let mut energy_m = vec![vec![0.0; nw]; nw];
+    let mut lambda_unit = vec![vec![C::new(0.0, 0.0); nw]; nw];
+    for i in 0..nw {
+        for j in 0..nw {
+            lambda_unit[i][j] = linkage(i, &unit[j]);
+            flux_m[i][j] = lambda_unit[i][j].re * depth;
+            if j >= i {
+                energy_m[i][j] = energy2(&unit[i], &unit[j]) * depth;
+                energy_m[j][i] = energy_m[i][j];
+            }
+        }
+    }
+    // Losses per region id (W, for the model depth).
+    let region_loss: Vec<f64> = match harmonic {
+        Some(h) => h
+            .region_losses(&total.f, &total.psi)
+            .iter()
+            .map(|p| p * depth)
+            .collect(),
+        None => vec![0.0; disc.region_count],
+    };
+    let skin_of = |name: &str| {
+        model
+            .skin
+            .iter()
+            .find(|s| s.name == name)
+            .map(|s| s.depth_m)
+    };
 
     // Parts and conductors: |B| statistics of the rms vector.
     let flux_stats = |regions: &[u32]| region_flux(&[&field[0], &field[1]], regions);
@@ -312,13 +477,13 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 material: p.material.clone(),
                 b_mean_t: s.b_mean,
                 b_peak_t: s.b_peak,
-                loss_w: 0.0,
+                loss_w: regions.iter().map(|&r| region_loss[r as usize]).sum(),
                 b_sat_t: b_sat,
                 b_peak_over_sat: b_sat.map(|bs| s.b_peak / bs),
+                skin_depth_m: skin_of(&p.name),
             },
         );
     }
-    let ind = inductances(&sol);
     let ncoils = case.coils.len();
     let mut conductors = BTreeMap::new();
     for (i, c) in case.conductors.iter().enumerate() {
@@ -329,55 +494,96 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             .get(&c.material)
             .map_or(0.0, |m| m.conductivity);
         let w = ncoils + i;
-        // DC resistance from the current density per ampere: R = ∫ j²/σ dV (j per ampere).
-        let r = if sigma > 0.0 {
-            let mut p = 0.0;
-            for cell in 0..sol.disc.n_cells() {
-                for de in sol.densities[w]
-                    .iter()
-                    .filter(|de| de.region == sol.disc.cell_region[cell])
-                {
-                    sol.unit[w].quadrature(cell, &fluxpick_solver::quadrature::DEGREE6, |v, dv| {
-                        p += de.at(v.x).powi(2) / sigma * dv;
-                    });
+        // DC resistance: planar depth/(σS); axisymmetric (a ring) 2π/(σ∫dS/r) when solid,
+        // ∫ j²/σ dV with the uniform density when stranded.
+        let mut area = 0.0;
+        let mut inv_r = 0.0;
+        let mut dv_inv_r2 = 0.0;
+        for cell in (0..disc.n_cells()).filter(|&k| regions.contains(&disc.cell_region[k])) {
+            like.quadrature(cell, &fluxpick_solver::quadrature::DEGREE6, |v, dv| {
+                let dsurf = if axi { dv / (TAU * v.x[0]) } else { dv };
+                area += dsurf;
+                if axi {
+                    inv_r += dsurf / v.x[0];
+                    dv_inv_r2 += dv;
                 }
-            }
-            p * depth
-        } else {
+            });
+        }
+        let r_dc = if sigma <= 0.0 || area <= 0.0 {
             0.0
+        } else if !axi {
+            depth / (sigma * area)
+        } else if c.kind == ConductorKind::Solid {
+            TAU / (sigma * inv_r)
+        } else {
+            dv_inv_r2 / (sigma * area * area)
+        };
+        let inside = |cell: usize| regions.contains(&disc.cell_region[cell]);
+        let own = &unit[w];
+        let l_int = (own.f[0].energy(inside) + own.f[1].energy(inside)) * 2.0 * depth;
+        let loss = if harmonic.is_some() && c.kind == ConductorKind::Solid {
+            regions.iter().map(|&r| region_loss[r as usize]).sum()
+        } else {
+            c.current * c.current * r_dc
+        };
+        let r_ac = if c.current != 0.0 {
+            loss / (c.current * c.current)
+        } else {
+            // no current of its own: the resistance at 1 A alone
+            match harmonic {
+                Some(h) if c.kind == ConductorKind::Solid => {
+                    h.region_losses(&own.f, &own.psi)
+                        .iter()
+                        .enumerate()
+                        .filter(|(r, _)| regions.contains(&(*r as u32)))
+                        .map(|(_, p)| p)
+                        .sum::<f64>()
+                        * depth
+                }
+                _ => r_dc,
+            }
         };
         conductors.insert(
             c.name.clone(),
             ConductorFigures {
                 current_a: c.current,
+                phase_deg: c.phase_deg,
                 b_mean_t: s.b_mean,
                 b_peak_t: s.b_peak,
-                loss_w: c.current * c.current * r,
-                resistance_ohm: r,
-                inductance_h: ind.flux[w][w] * depth,
+                loss_w: loss,
+                resistance_ohm: r_ac,
+                dc_resistance_ohm: r_dc,
+                ac_dc_ratio: (r_dc > 0.0).then(|| r_ac / r_dc),
+                internal_inductance_h: l_int,
+                inductance_h: flux_m[w][w],
+                skin_depth_m: skin_of(&c.name),
             },
         );
     }
     let mut coils = BTreeMap::new();
     for (i, c) in case.coils.iter().enumerate() {
-        let lam = [
-            flux_linkage(&field[0], &sol.densities[i]) * depth,
-            flux_linkage(&field[1], &sol.densities[i]) * depth,
-        ];
-        let (lam_m, lam_p) = magnitude_phase(lam);
-        let l = ind.flux[i][i] * depth;
+        let lam = linkage(i, &total) * depth;
+        let (lam_m, lam_p) = (lam.norm(), lam.arg().to_degrees());
+        let l = flux_m[i][i];
+        // Z = jωλ per ampere of its own current: R_eddy = −ω Im λ.
+        let r_eddy = if ac {
+            -omega * lambda_unit[i][i].im * depth
+        } else {
+            0.0
+        };
         let mtl = mean_turn_length(case, &c.window);
         let length = c.turns * mtl;
         let r = wire::resistance_per_metre(c.wire.diameter, c.temperature_c) * length;
         let mass = wire::mass_per_metre(c.wire.diameter) * length;
         // EMF = −jωλ (rms phasor); static: 0.
-        let emf = [omega * lam[1], -omega * lam[0]];
-        let (emf_m, emf_p) = magnitude_phase(emf);
-        let (q, ct, pm) = if harmonic && l > 0.0 && r > 0.0 {
+        let emf = C::new(0.0, -omega) * lam;
+        let (emf_m, emf_p) = (emf.norm(), emf.arg().to_degrees());
+        let r_total = r + r_eddy;
+        let (q, ct, pm) = if ac && l > 0.0 && r_total > 0.0 {
             (
-                Some(omega * l / r),
+                Some(omega * l / r_total),
                 Some(1.0 / (omega * omega * l)),
-                Some(emf_m * emf_m / (4.0 * r)),
+                Some(emf_m * emf_m / (4.0 * r_total)),
             )
         } else {
             (None, None, None)
@@ -386,14 +592,14 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             c.name.clone(),
             CoilFigures {
                 turns: c.turns,
-                flux_linkage_wb: if harmonic { lam_m } else { lam[0] },
-                flux_linkage_wb_phase_deg: if harmonic { lam_p } else { 0.0 },
-                emf_v: if harmonic { emf_m } else { 0.0 },
-                emf_v_phase_deg: if harmonic { emf_p } else { 0.0 },
+                flux_linkage_wb: if ac { lam_m } else { lam.re },
+                flux_linkage_wb_phase_deg: if ac { lam_p } else { 0.0 },
+                emf_v: if ac { emf_m } else { 0.0 },
+                emf_v_phase_deg: if ac { emf_p } else { 0.0 },
                 inductance_h: l,
-                inductance_energy_h: ind.energy[i][i] * depth,
+                inductance_energy_h: energy_m[i][i],
                 resistance_ohm: r,
-                eddy_resistance_ohm: 0.0,
+                eddy_resistance_ohm: r_eddy,
                 wire_diameter_m: c.wire.diameter,
                 wire_length_m: length,
                 mean_turn_length_m: mtl,
@@ -401,10 +607,10 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 q,
                 tuning_capacitance_f: ct,
                 matched_power_w: pm,
-                equivalent_area_m2: case.background.as_ref().filter(|b| b.b != 0.0).map(|b| {
-                    let bg = sol.background.as_ref().expect("background solved");
-                    flux_linkage(bg, &sol.densities[i]) * depth / b.b
-                }),
+                equivalent_area_m2: match (&case.background, &background) {
+                    (Some(b), Some(bg)) if b.b != 0.0 => Some(linkage(i, bg).norm() * depth / b.b),
+                    _ => None,
+                },
             },
         );
     }
@@ -416,43 +622,79 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         };
         let re = probe::sample(&field[0], &points);
         let im = probe::sample(&field[1], &points);
-        let b_t: Vec<Option<[f64; 2]>> = re
+        let pairs: Vec<Option<([f64; 2], [f64; 2])>> = re
             .iter()
             .zip(&im)
             .map(|(a, b)| match (a.b, b.b) {
-                (Some(x), Some(y)) if harmonic => Some([x[0].hypot(y[0]), x[1].hypot(y[1])]),
-                (Some(x), _) => Some(x),
+                (Some(x), Some(y)) => Some((x, y)),
                 _ => None,
             })
             .collect();
-        let b_abs_t = re
+        let b_t = pairs
             .iter()
-            .zip(&im)
-            .map(|(a, b)| match (a.b, b.b) {
-                (Some(x), Some(y)) => {
-                    Some((x[0].powi(2) + x[1].powi(2) + y[0].powi(2) + y[1].powi(2)).sqrt())
-                }
-                _ => None,
+            .map(|p| {
+                p.map(|(x, y)| {
+                    if ac {
+                        [x[0].hypot(y[0]), x[1].hypot(y[1])]
+                    } else {
+                        x
+                    }
+                })
             })
             .collect();
+        let b_abs_t = pairs
+            .iter()
+            .map(|p| {
+                p.map(|(x, y)| (x[0].powi(2) + x[1].powi(2) + y[0].powi(2) + y[1].powi(2)).sqrt())
+            })
+            .collect();
+        let ellipse = if ac {
+            Some(
+                pairs
+                    .iter()
+                    .map(|p| p.map(|(x, y)| field_ellipse(x, y)))
+                    .collect(),
+            )
+        } else {
+            None
+        };
         probes.insert(
             p.name.clone(),
             ProbeFigures {
                 points,
                 b_t,
                 b_abs_t,
+                ellipse,
             },
         );
     }
+    // Current density per cell (A/m², rms phasor): induced and solid-conductor currents
+    // from the harmonic solve plus the imposed density of stranded windings.
+    let mut current_density: Vec<C> = match harmonic {
+        Some(h) => h.cell_current_density(&total.f, &total.psi),
+        None => vec![C::new(0.0, 0.0); disc.n_cells()],
+    };
+    for (w, dens) in densities.iter().enumerate() {
+        for de in dens {
+            for (cell, j) in current_density.iter_mut().enumerate() {
+                if disc.cell_region[cell] == de.region {
+                    let v = disc.vertices(cell);
+                    let x = [
+                        (v[0][0] + v[1][0] + v[2][0]) / 3.0,
+                        (v[0][1] + v[1][1] + v[2][1]) / 3.0,
+                    ];
+                    *j += currents[w] * de.at(x);
+                }
+            }
+        }
+    }
     let energy = (domain_energy(&field[0]) + domain_energy(&field[1])) * depth;
     let stats = mesh.stats();
-    let physical_cells = (0..sol.disc.n_cells())
-        .filter(|&c| !sol.disc.is_image(c))
-        .count();
+    let physical_cells = (0..disc.n_cells()).filter(|&c| !disc.is_image(c)).count();
     let physical_nodes = {
-        let mut used = vec![false; sol.disc.points.len()];
-        for c in (0..sol.disc.n_cells()).filter(|&c| !sol.disc.is_image(c)) {
-            for &n in sol.disc.cell(c) {
+        let mut used = vec![false; disc.points.len()];
+        for c in (0..disc.n_cells()).filter(|&c| !disc.is_image(c)) {
+            for &n in disc.cell(c) {
                 used[n as usize] = true;
             }
         }
@@ -460,25 +702,33 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
     };
     let mut names: Vec<String> = case.coils.iter().map(|c| c.name.clone()).collect();
     names.extend(case.conductors.iter().map(|c| c.name.clone()));
-    let scale = |m: &Vec<Vec<f64>>| {
-        m.iter()
-            .map(|r| r.iter().map(|v| v * depth).collect())
-            .collect()
-    };
     let post_s = t0.elapsed().as_secs_f64();
+    let (timings, nnz, max_residual, method, iterations) = match &solved {
+        Solved::Static(s) => (
+            s.timings,
+            s.nnz,
+            s.max_residual,
+            "supernodal Cholesky (real)",
+            None,
+        ),
+        Solved::Harmonic(h) => (
+            h.timings,
+            h.nnz,
+            h.max_residual,
+            "GMRES preconditioned by the Cholesky of K + ωσM",
+            Some(h.krylov_iterations),
+        ),
+    };
     let results = Results {
         title: case.title.clone(),
-        symmetry: match case.symmetry {
-            Symmetry::Planar => "planar".into(),
-            Symmetry::Axisymmetric => "axisymmetric".into(),
-        },
+        symmetry: if axi { "axisymmetric" } else { "planar" }.into(),
         frequency_hz: case.frequency,
-        depth_m: (case.symmetry == Symmetry::Planar).then_some(case.depth),
+        depth_m: (!axi).then_some(case.depth),
         mesh: MeshFigures {
             nodes: physical_nodes,
             triangles: physical_cells,
-            exterior_triangles: sol.disc.n_cells() - physical_cells,
-            unknowns: sol.disc.n_dofs,
+            exterior_triangles: disc.n_cells() - physical_cells,
+            unknowns: disc.n_dofs + nk,
             min_angle_deg: stats.min_angle_deg,
             mean_angle_deg: stats.mean_min_angle_deg,
             element_order: if quad { 2 } else { 1 },
@@ -489,26 +739,38 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         coils,
         inductance_matrix: InductanceMatrix {
             names,
-            flux_h: scale(&ind.flux),
-            energy_h: scale(&ind.energy),
+            flux_h: flux_m,
+            energy_h: energy_m,
         },
         probes,
+        skin_layers: model
+            .skin
+            .iter()
+            .map(|s| SkinFigures {
+                name: s.name.clone(),
+                skin_depth_m: s.depth_m,
+                surface_element_m: s.surface_size_m,
+            })
+            .collect(),
         solve: SolveFigures {
             mesh_s,
-            assemble_s: sol.timings.setup + sol.timings.assemble,
-            factor_s: sol.timings.symbolic + sol.timings.factor,
-            solve_s: sol.timings.solve,
+            assemble_s: timings.setup + timings.assemble,
+            factor_s: timings.symbolic + timings.factor,
+            solve_s: timings.solve,
             post_s,
-            nonzeros: sol.nnz,
-            max_relative_residual: sol.max_residual,
+            nonzeros: nnz,
+            max_relative_residual: max_residual,
+            method: method.into(),
+            krylov_iterations: iterations,
         },
         warnings,
     };
     Ok(Run {
         model,
         mesh,
-        solution: sol,
+        disc,
         field,
+        current_density,
         results,
     })
 }

@@ -179,3 +179,185 @@ fn round_wire_matches_bessel_solution_from_0_2_to_10_skin_depths() {
         }
     }
 }
+
+/// A plate |y| < d/2 across a strip of width w, between fixed boundaries at y = ±y_max
+/// holding the background potential of a tangential field b along x; the strip's sides
+/// are left natural (flux-normal), so nothing varies along x.
+fn plate(d: f64, mu_r: f64, sigma: f64) -> (C, C, f64, C, C, f64) {
+    let delta = skin_depth(F, mu_r, sigma);
+    let (w, y_max, b) = (2.0 * delta, d / 2.0 + 4.0 * delta, 1e-3);
+    let spec = MeshSpec {
+        outer: Outer::Rect {
+            min: [0.0, -y_max],
+            max: [w, y_max],
+        },
+        background_max_edge: delta / 2.0,
+        regions: vec![RegionInput {
+            shape: Shape::Rect {
+                min: [0.0, -d / 2.0],
+                max: [w, d / 2.0],
+            },
+            max_edge: Some(delta / 2.0),
+            skin_edge: Some(delta / 5.0),
+        }],
+        clip_at_axis: false,
+        exterior_image: false,
+        params: MeshParams::default(),
+    };
+    let mesh = generate(&spec).unwrap();
+    let p = Problem {
+        mesh: &mesh,
+        formulation: Formulation::Planar,
+        order: Order::Quadratic,
+        materials: vec![
+            RegionMaterial::from_mu_r(1.0, 0.0),
+            RegionMaterial::from_mu_r(mu_r, sigma),
+        ],
+        windings: vec![],
+        background: Some([b, 0.0]),
+        dirichlet: vec![Side::Bottom, Side::Top],
+    };
+    let sol = solve_harmonic(&p, F).unwrap();
+    let omega = TAU * F;
+    let field = sol.background.as_ref().unwrap();
+    let psi = &sol.background_psi;
+    // FE: H_x just above the plate, A at its face, loss per metre of depth.
+    let at = |x: [f64; 2]| {
+        let (re, im) = (field[0].at(x).unwrap(), field[1].at(x).unwrap());
+        (C::new(re.a, im.a), C::new(re.b[0], im.b[0]))
+    };
+    let (_, b_gap) = at([w / 2.0, d / 2.0 + 2.0 * delta]);
+    let h0 = b_gap / MU0;
+    let (a_face, _) = at([w / 2.0, d / 2.0]);
+    let zs = C::new(0.0, omega) * a_face / h0;
+    let loss = sol.region_losses(field, psi)[1];
+    // Exact 1D solution.
+    let k = C::new(1.0, 1.0) / delta;
+    let mu = MU0 * mu_r;
+    let th = (k * d / 2.0).tanh();
+    let h0_exact = C::new(b * y_max, 0.0) / (mu * th / k + MU0 * (y_max - d / 2.0));
+    let zs_exact = C::new(0.0, omega * mu) * th / k;
+    let loss_exact = 2.0 * w * zs_exact.re * h0_exact.norm_sqr();
+    (h0, zs, loss, h0_exact, zs_exact, loss_exact)
+}
+
+#[test]
+fn plate_surface_impedance_and_loss_match_the_1d_solution() {
+    // Aluminium and a mild steel (μr 100, σ 5 MS/m, typical values), thick (8δ) and thin
+    // (1δ, where tanh(kd/2) departs from 1).
+    for (mu_r, sigma, name) in [(1.0, 3.5e7, "aluminium"), (100.0, 5e6, "steel")] {
+        let delta = skin_depth(F, mu_r, sigma);
+        for t in [8.0, 1.0] {
+            let (h0, zs, loss, h0e, zse, losse) = plate(t * delta, mu_r, sigma);
+            println!(
+                "{name} d = {t}δ: H0 {h0:.4} ({h0e:.4}) Zs {zs:.4e} ({zse:.4e}) loss {loss:.5e} ({losse:.5e})"
+            );
+            assert!((h0 - h0e).norm() < 0.005 * h0e.norm(), "{name} {t}δ: H0");
+            assert!((zs - zse).norm() < 0.01 * zse.norm(), "{name} {t}δ: Zs");
+            assert!((loss / losse - 1.0).abs() < 0.01, "{name} {t}δ: loss");
+            if t > 4.0 {
+                // the thick limit (1 + j)/(σδ)
+                let thick = C::new(1.0, 1.0) / (sigma * delta);
+                assert!((zs - thick).norm() < 0.01 * thick.norm());
+            }
+        }
+    }
+}
+
+/// A cylinder r < a, a coil of `turns` × 1 A filling c1 < r < c2, both through the whole
+/// height h; natural conditions at top, bottom and outside (H_z = 0 beyond the coil), the
+/// axis held at 0. Returns (FE B on the axis, exact), (FE loss per metre, exact), FE H in
+/// the gap and its exact N I / h.
+fn axial_cylinder(a: f64, mu_r: f64, sigma: f64) -> ((C, C), (f64, f64), (C, f64)) {
+    let delta = skin_depth(F, mu_r, sigma);
+    let (c1, c2, h, turns) = (a + delta, a + 2.0 * delta, 2.0 * delta, 100.0);
+    let spec = MeshSpec {
+        outer: Outer::Rect {
+            min: [0.0, 0.0],
+            max: [c2 + delta, h],
+        },
+        background_max_edge: delta / 2.0,
+        regions: vec![
+            RegionInput {
+                shape: Shape::Rect {
+                    min: [0.0, 0.0],
+                    max: [a, h],
+                },
+                max_edge: Some(delta / 2.0),
+                skin_edge: Some(delta / 5.0),
+            },
+            RegionInput {
+                shape: Shape::Rect {
+                    min: [c1, 0.0],
+                    max: [c2, h],
+                },
+                max_edge: Some(delta / 2.0),
+                skin_edge: None,
+            },
+        ],
+        clip_at_axis: true,
+        exterior_image: false,
+        params: MeshParams::default(),
+    };
+    let mesh = generate(&spec).unwrap();
+    let p = Problem {
+        mesh: &mesh,
+        formulation: Formulation::Axisymmetric,
+        order: Order::Quadratic,
+        materials: vec![
+            RegionMaterial::from_mu_r(1.0, 0.0),
+            RegionMaterial::from_mu_r(mu_r, sigma),
+            RegionMaterial::from_mu_r(1.0, 0.0),
+        ],
+        windings: vec![Winding {
+            name: "solenoid".into(),
+            regions: vec![WindingRegion {
+                region: 2,
+                turns,
+                spread: Spread::Uniform,
+            }],
+        }],
+        background: None,
+        dirichlet: vec![Side::Left],
+    };
+    let sol = solve_harmonic(&p, F).unwrap();
+    let omega = TAU * F;
+    let f = &sol.unit[0];
+    let b_at = |x: [f64; 2]| {
+        let (re, im) = (f[0].at(x).unwrap(), f[1].at(x).unwrap());
+        C::new(re.b[1], im.b[1])
+    };
+    let b_axis = b_at([0.0, h / 2.0]);
+    let h_gap = b_at([0.5 * (a + c1), h / 2.0]) / MU0;
+    let loss = sol.region_losses(f, &sol.unit_psi[0])[1] / h;
+    // Exact: H_s = N I / h at the surface, B(r) = μ H_s J0(kr)/J0(ka), k = (1 − j)/δ.
+    let hs = turns / h;
+    let k = C::new(1.0, -1.0) / delta;
+    let mu = MU0 * mu_r;
+    let ka = k * a;
+    let b_axis_exact = mu * hs / bessel_j(0, ka);
+    let a_face = mu * hs * bessel_j(1, ka) / (k * bessel_j(0, ka));
+    let loss_exact = TAU * a * (C::new(0.0, omega) * a_face * hs).re;
+    ((b_axis, b_axis_exact), (loss, loss_exact), (h_gap, hs))
+}
+
+#[test]
+fn axial_cylinder_matches_the_kelvin_function_solution() {
+    for (mu_r, sigma, x, name) in [
+        (1.0, 3.5e7, 3.0, "aluminium"),
+        (100.0, 5e6, 5.0, "steel"),
+        (1.0, 5.8e7, 0.7, "copper"),
+    ] {
+        let delta = skin_depth(F, mu_r, sigma);
+        let ((b, be), (p, pe), (hg, hge)) = axial_cylinder(x * delta, mu_r, sigma);
+        println!(
+            "{name} a = {x}δ: B axis {b:.5e} ({be:.5e}) loss/m {p:.5e} ({pe:.5e}) H gap {hg:.4}"
+        );
+        assert!(
+            (hg.norm() / hge - 1.0).abs() < 0.005,
+            "{name}: gap field {hg} vs {hge}"
+        );
+        assert!((b - be).norm() < 0.02 * be.norm(), "{name}: axis field");
+        assert!((p / pe - 1.0).abs() < 0.02, "{name}: loss {p} vs {pe}");
+    }
+}

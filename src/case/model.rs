@@ -81,6 +81,8 @@ pub struct Part {
     pub shape: Shape,
     /// Largest element edge inside (m); `None` = the domain's.
     pub mesh_size: Option<f64>,
+    /// Largest edge at the surface when eddy currents flow (m); `None` = δ/3.
+    pub skin_mesh_size: Option<f64>,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -102,6 +104,8 @@ pub struct Conductor {
     pub phase_deg: f64,
     pub kind: ConductorKind,
     pub mesh_size: Option<f64>,
+    /// Largest edge at the surface when eddy currents flow (m); `None` = δ/3.
+    pub skin_mesh_size: Option<f64>,
 }
 
 /// The winding wire.

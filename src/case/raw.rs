@@ -306,6 +306,10 @@ with_shape_keys! {
         pub material: Spanned<String>,
         #[serde(default)]
         pub mesh_size: Option<SNum>,
+        /// Largest edge at the surface of a conductive part at f > 0 (default: a third of
+        /// the skin depth).
+        #[serde(default)]
+        pub skin_mesh_size: Option<SNum>,
     }
 }
 
@@ -331,6 +335,9 @@ with_shape_keys! {
         pub kind: Option<Spanned<RawConductorKind>>,
         #[serde(default)]
         pub mesh_size: Option<SNum>,
+        /// As for parts.
+        #[serde(default)]
+        pub skin_mesh_size: Option<SNum>,
     }
 }
 

@@ -937,11 +937,14 @@ pub(super) fn resolve(
         let (shape, span) = cx.shape(pv.shape_keys(), &path, p.span(), "the part")?;
         cx.check_placement(&shape, &span, &path, &domain)?;
         let mesh_size = cx.opt_mesh_size(&pv.mesh_size, &format!("{path}.mesh_size"))?;
+        let skin_mesh_size =
+            cx.opt_mesh_size(&pv.skin_mesh_size, &format!("{path}.skin_mesh_size"))?;
         parts.push(Part {
             name,
             material,
             shape,
             mesh_size,
+            skin_mesh_size,
         });
     }
 
@@ -967,6 +970,8 @@ pub(super) fn resolve(
             Some(RawConductorKind::Stranded) => ConductorKind::Stranded,
         };
         let mesh_size = cx.opt_mesh_size(&v.mesh_size, &format!("{path}.mesh_size"))?;
+        let skin_mesh_size =
+            cx.opt_mesh_size(&v.skin_mesh_size, &format!("{path}.skin_mesh_size"))?;
         conductors.push(Conductor {
             name,
             material,
@@ -975,6 +980,7 @@ pub(super) fn resolve(
             phase_deg,
             kind,
             mesh_size,
+            skin_mesh_size,
         });
     }
 
