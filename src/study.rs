@@ -91,6 +91,12 @@ pub struct ConductorFigures {
     /// closes at the outer boundary (or at infinity for an open one: grows with its size).
     pub inductance_h: f64,
     pub skin_depth_m: Option<f64>,
+    /// Voltage across the conductor for the model depth (rms; static: 0): the resistive
+    /// drop plus the induced part, the loop closing at the outer boundary.
+    pub voltage_v: f64,
+    pub voltage_v_phase_deg: f64,
+    /// Re(V I*): the power this conductor's source delivers into the field and losses.
+    pub input_power_w: f64,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -543,9 +549,21 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 _ => r_dc,
             }
         };
+        // V = jωλ + (at DC or when stranded) the resistive drop I R_dc.
+        let lam = linkage(w, &total) * depth;
+        let i_w = currents[w];
+        let v = C::new(0.0, omega) * lam
+            + if harmonic.is_some() && c.kind == ConductorKind::Solid {
+                C::new(0.0, 0.0)
+            } else {
+                i_w * r_dc
+            };
         conductors.insert(
             c.name.clone(),
             ConductorFigures {
+                voltage_v: if ac { v.norm() } else { v.re },
+                voltage_v_phase_deg: if ac { v.arg().to_degrees() } else { 0.0 },
+                input_power_w: (v * i_w.conj()).re,
                 current_a: c.current,
                 phase_deg: c.phase_deg,
                 b_mean_t: s.b_mean,
