@@ -177,6 +177,19 @@ pub fn write_results_json(path: &Path, results: &Results) -> std::io::Result<()>
     atomic_write(path, format!("{text}\n").as_bytes())
 }
 
+/// A duration in the unit a person would use: s, min, h or days.
+pub fn duration(t: f64) -> String {
+    if t < 120.0 {
+        eng(t, "s")
+    } else if t < 7200.0 {
+        format!("{:.1} min", t / 60.0)
+    } else if t < 172_800.0 {
+        format!("{:.1} h", t / 3600.0)
+    } else {
+        format!("{:.1} days", t / 86_400.0)
+    }
+}
+
 /// Engineering notation with SI prefix: `eng(2.5e-5, "H")` = "25.0 µH".
 pub fn eng(v: f64, unit: &str) -> String {
     if v == 0.0 || !v.is_finite() {
@@ -228,65 +241,124 @@ pub fn summary(r: &Results) -> String {
         let _ = writeln!(s, "planar figures are for a depth of {}", eng(d, "m"));
     }
     let _ = writeln!(s, "stored energy {}", eng(r.energy_j, "J"));
-    if !r.coils.is_empty() {
+    let na = |v: Option<f64>, u: &str| v.map_or("n/a".to_string(), |v| eng(v, u));
+    let ac = r.frequency_hz > 0.0;
+    for (name, c) in &r.coils {
         let _ = writeln!(
             s,
-            "\n{:<14} {:>12} {:>12} {:>12} {:>12} {:>9} {:>12} {:>12}",
-            "coil", "flux link.", "EMF", "L", "R", "Q", "C tune", "P matched"
+            "\ncoil {name}: {} turns of {} wire, {} long, {} copper; window holds {:.0} turns at its fill factor",
+            c.turns,
+            eng(c.wire_diameter_m, "m"),
+            eng(c.wire_length_m, "m"),
+            eng(c.copper_mass_kg * 1e3, "g"),
+            c.turns_that_fit
         );
-        for (name, c) in &r.coils {
-            let opt = |v: Option<f64>, u: &str| v.map_or("n/a".to_string(), |v| eng(v, u));
+        if ac {
             let _ = writeln!(
                 s,
-                "{:<14} {:>12} {:>12} {:>12} {:>12} {:>9} {:>12} {:>12}",
-                name,
+                "  flux linkage {} at {:.1}°, EMF {} rms at {:.1}°",
                 eng(c.flux_linkage_wb, "Wb"),
+                c.flux_linkage_wb_phase_deg,
                 eng(c.emf_v, "V"),
-                eng(c.inductance_h, "H"),
-                eng(c.resistance_ohm, "Ω"),
-                c.q.map_or("n/a".to_string(), |q| format!("{q:.1}")),
-                opt(c.tuning_capacitance_f, "F"),
-                opt(c.matched_power_w, "W"),
+                c.emf_v_phase_deg
             );
-            if let Some(a) = c.equivalent_area_m2 {
-                let _ = writeln!(s, "{:<14} equivalent area {:.4e} m²", "", a);
+        } else {
+            let _ = writeln!(s, "  flux linkage {}", eng(c.flux_linkage_wb, "Wb"));
+        }
+        let _ = writeln!(
+            s,
+            "  L {} (energy check {}), R {} winding + {} induced, Q {}",
+            eng(c.inductance_h, "H"),
+            eng(c.inductance_energy_h, "H"),
+            eng(c.resistance_ohm, "Ω"),
+            eng(c.eddy_resistance_ohm, "Ω"),
+            c.q.map_or("n/a".to_string(), |q| format!("{q:.1}"))
+        );
+        if ac {
+            let _ = writeln!(
+                s,
+                "  tuning {}: C {} (series {}, parallel {}), capacitor voltage at resonance {}",
+                c.tuning,
+                na(c.tuning_capacitance_f, "F"),
+                na(c.series_capacitance_f, "F"),
+                na(c.parallel_capacitance_f, "F"),
+                na(c.capacitor_voltage_v, "V")
+            );
+            let load = match c.load_ohm {
+                Some(x) => format!("into {}: {}", eng(x, "Ω"), na(c.load_power_w, "W")),
+                None => "into a matched load".into(),
+            };
+            let _ = writeln!(s, "  power matched {}, {load}", na(c.matched_power_w, "W"));
+            if let Some(e) = c.storage_energy_j {
+                let _ = writeln!(
+                    s,
+                    "  storage {} charged in {} (ideal rectifier)",
+                    eng(e, "J"),
+                    c.charge_time_s.map_or("n/a".to_string(), duration)
+                );
             }
+            if c.power_per_cm3_w.is_some() || c.power_per_gram_w.is_some() {
+                let _ = writeln!(
+                    s,
+                    "  per cm³ of core {}, per gram of core and copper {}",
+                    na(c.power_per_cm3_w, "W"),
+                    na(c.power_per_gram_w, "W")
+                );
+            }
+        } else {
+            let _ = writeln!(s, "  circuit figures: n/a at 0 Hz");
+        }
+        if let Some(a) = c.equivalent_area_m2 {
+            let _ = writeln!(s, "  equivalent area {a:.4e} m² (flux linkage / applied b)");
         }
     }
     if !r.parts.is_empty() {
         let _ = writeln!(
             s,
-            "\n{:<14} {:>12} {:>12} {:>10}",
-            "part", "mean |B|", "peak |B|", "peak/sat"
+            "\n{:<14} {:>12} {:>12} {:>10} {:>10} {:>12}",
+            "part", "mean |B|", "peak |B|", "peak/sat", "μ app.", "loss"
         );
         for (name, p) in &r.parts {
             let _ = writeln!(
                 s,
-                "{:<14} {:>12} {:>12} {:>10}",
+                "{:<14} {:>12} {:>12} {:>10} {:>10} {:>12}",
                 name,
                 eng(p.b_mean_t, "T"),
                 eng(p.b_peak_t, "T"),
                 p.b_peak_over_sat
-                    .map_or("-".into(), |x| format!("{:.1} %", 100.0 * x))
+                    .map_or("-".into(), |x| format!("{:.1} %", 100.0 * x)),
+                p.apparent_permeability
+                    .map_or("-".into(), |x| format!("{x:.1}")),
+                eng(p.loss_w, "W")
             );
         }
     }
     if !r.conductors.is_empty() {
         let _ = writeln!(
             s,
-            "\n{:<14} {:>12} {:>12} {:>12}",
-            "conductor", "current", "R", "loss"
+            "\n{:<14} {:>12} {:>12} {:>9} {:>12}",
+            "conductor", "current", "R (AC)", "AC/DC", "loss"
         );
         for (name, c) in &r.conductors {
             let _ = writeln!(
                 s,
-                "{:<14} {:>12} {:>12} {:>12}",
+                "{:<14} {:>12} {:>12} {:>9} {:>12}",
                 name,
                 eng(c.current_a, "A"),
                 eng(c.resistance_ohm, "Ω"),
+                c.ac_dc_ratio.map_or("-".into(), |x| format!("{x:.3}")),
                 eng(c.loss_w, "W")
             );
         }
+    }
+    for k in &r.skin_layers {
+        let _ = writeln!(
+            s,
+            "skin depth in {}: {} (surface elements {})",
+            k.name,
+            eng(k.skin_depth_m, "m"),
+            eng(k.surface_element_m, "m")
+        );
     }
     for w in &r.warnings {
         let _ = writeln!(s, "warning: {w}");

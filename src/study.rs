@@ -13,7 +13,7 @@ use fluxpick_mesh::Mesh;
 use std::sync::Arc;
 
 use fluxpick_postproc::figures::{domain_energy, flux_linkage, region_flux};
-use fluxpick_postproc::{probe, wire};
+use fluxpick_postproc::{circuit, probe, wire};
 use fluxpick_solver::{
     solve_harmonic, solve_static, Discretisation, Field, Formulation, HarmonicSolution, Problem,
     SolveError, StaticSolution,
@@ -71,6 +71,9 @@ pub struct PartFigures {
     pub b_peak_over_sat: Option<f64>,
     /// Skin depth of the part's material at the case frequency (conductive parts, f > 0).
     pub skin_depth_m: Option<f64>,
+    /// With a background field: mean flux density along the part's middle cross-section
+    /// (across the applied direction) over the applied b.
+    pub apparent_permeability: Option<f64>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -119,6 +122,35 @@ pub struct CoilFigures {
     pub q: Option<f64>,
     pub tuning_capacitance_f: Option<f64>,
     pub matched_power_w: Option<f64>,
+    /// Copper cross-section window (one side for planar coils), m², and the turns of the
+    /// bare wire that fit it at the coil's fill factor.
+    pub window_area_m2: f64,
+    pub turns_that_fit: f64,
+    /// Wire diameter over the skin depth in copper at the case frequency: below about 0.5
+    /// skin and proximity effects inside the wire are negligible (common practice).
+    pub wire_diameter_over_skin_depth: Option<f64>,
+    /// The tuning `tuning_capacitance_f` is for ([circuit] of this coil; series otherwise).
+    pub tuning: String,
+    pub series_capacitance_f: Option<f64>,
+    pub parallel_capacitance_f: Option<f64>,
+    /// rms voltage across the tuning capacitor at resonance (worst case: series tuning
+    /// with the load shorted, parallel with it open), ≈ Q × EMF.
+    pub capacitor_voltage_v: Option<f64>,
+    /// The stated resistive load (null = matched).
+    pub load_ohm: Option<f64>,
+    pub load_power_w: Option<f64>,
+    /// ½CV² of `circuit.storage` and the time to reach it at `load_power_w` through an
+    /// ideal rectifier (lossless, drawing that power at any capacitor voltage).
+    pub storage_energy_j: Option<f64>,
+    pub charge_time_s: Option<f64>,
+    /// Magnetic parts inside the coil's span, their volume (for the model depth) and mass
+    /// (when every core material gives a density).
+    pub core_parts: Vec<String>,
+    pub core_volume_m3: Option<f64>,
+    pub core_mass_kg: Option<f64>,
+    /// Matched power per cm³ of core, and per gram of core and copper.
+    pub power_per_cm3_w: Option<f64>,
+    pub power_per_gram_w: Option<f64>,
     pub equivalent_area_m2: Option<f64>,
 }
 
@@ -217,6 +249,85 @@ fn centroid(shape: &Shape) -> [f64; 2] {
             ]
         }
     }
+}
+
+/// Bounding box `[min, max]` of the space a coil encloses: axisymmetric, from the axis to
+/// the window's outer radius over its height; planar, the box spanned by all its sides.
+fn coil_span(case: &Case, window: &CoilWindow) -> [[f64; 2]; 2] {
+    let mut lo = [f64::INFINITY; 2];
+    let mut hi = [f64::NEG_INFINITY; 2];
+    for (s, _) in window.shapes() {
+        let (a, b) = shape_bbox(s);
+        for k in 0..2 {
+            lo[k] = lo[k].min(a[k]);
+            hi[k] = hi[k].max(b[k]);
+        }
+    }
+    if case.symmetry == Symmetry::Axisymmetric {
+        lo[0] = 0.0;
+    }
+    [lo, hi]
+}
+
+fn shape_bbox(shape: &Shape) -> ([f64; 2], [f64; 2]) {
+    match shape {
+        Shape::Rect { min, max } => (*min, *max),
+        Shape::Circle { center, radius } => (
+            [center[0] - radius, center[1] - radius],
+            [center[0] + radius, center[1] + radius],
+        ),
+        Shape::Ellipse { center, semi_axes } => (
+            [center[0] - semi_axes[0], center[1] - semi_axes[1]],
+            [center[0] + semi_axes[0], center[1] + semi_axes[1]],
+        ),
+        Shape::Annulus { center, outer, .. } => (
+            [center[0] - outer, center[1] - outer],
+            [center[0] + outer, center[1] + outer],
+        ),
+        Shape::Polygon(p) => (
+            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min)),
+            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max)),
+        ),
+    }
+}
+
+/// Mean of |B · dir| along the part's middle cross-section (the line through its centroid
+/// across the applied direction), in the part only; weighted by r in axisymmetric form.
+fn apparent_permeability(
+    bg: &Phasor,
+    regions: &[u32],
+    shape: &Shape,
+    dir: [f64; 2],
+    axi: bool,
+) -> Option<f64> {
+    let c = centroid(shape);
+    let (lo, hi) = shape_bbox(shape);
+    let half = (hi[0] - lo[0]).hypot(hi[1] - lo[1]);
+    let perp = [-dir[1], dir[0]];
+    let n = 801;
+    let (mut sum, mut wsum) = (0.0, 0.0);
+    let f = &bg.f;
+    for k in 0..n {
+        let t = -half + 2.0 * half * k as f64 / (n - 1) as f64;
+        let p = [c[0] + t * perp[0], c[1] + t * perp[1]];
+        if axi && p[0] < 0.0 {
+            continue;
+        }
+        let Some((cell, _)) = f[0].locator.locate(&f[0].disc, p) else {
+            continue;
+        };
+        if !regions.contains(&f[0].disc.cell_region[cell]) {
+            continue;
+        }
+        let (Some(a), Some(b)) = (f[0].at(p), f[1].at(p)) else {
+            continue;
+        };
+        let along = (a.b[0] * dir[0] + a.b[1] * dir[1]).hypot(b.b[0] * dir[0] + b.b[1] * dir[1]);
+        let w = if axi { p[0] } else { 1.0 };
+        sum += w * along;
+        wsum += w;
+    }
+    (wsum > 0.0).then(|| sum / wsum)
 }
 
 /// Mean length of one turn: axisymmetric 2π r̄ of the window's centroid; planar, two runs
@@ -322,10 +433,13 @@ pub fn field_ellipse(u: [f64; 2], v: [f64; 2]) -> Ellipse {
     }
 }
 
+/// Conductivity of annealed copper at 20 °C, 1/(1.7241e-8 Ω·m) (IEC 60028).
+const COPPER_CONDUCTIVITY_20C: f64 = 1.0 / wire::COPPER_RESISTIVITY_20C;
+
 pub fn run(case: &Case) -> Result<Run, StudyError> {
     let omega = TAU * case.frequency;
     let ac = case.frequency > 0.0;
-    let warnings = Vec::new();
+    let mut warnings = Vec::new();
     let model = Model::new(case)?;
     let t0 = Instant::now();
     let mesh = mesh_model(case, &model)?;
@@ -477,9 +591,29 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         let regions = model.regions_of(|o| *o == Owner::Part(i));
         let s = flux_stats(&regions);
         let b_sat = case.materials.get(&p.material).and_then(|m| m.b_sat);
+        let mu_app = match (&case.background, &background) {
+            (Some(b), Some(bg)) if b.b != 0.0 => {
+                apparent_permeability(bg, &regions, &p.shape, b.direction, axi).map(|m| m / b.b)
+            }
+            _ => None,
+        };
+        if let Some(bs) = b_sat {
+            if s.b_peak > bs {
+                warnings.push(format!(
+                    "part `{}`: peak |B| {} exceeds the saturation flux density {} of `{}`; the linear result does not hold there",
+                    p.name, crate::output::eng(s.b_peak, "T"), crate::output::eng(bs, "T"), p.material
+                ));
+            } else if s.b_peak > 0.8 * bs {
+                warnings.push(format!(
+                    "part `{}`: peak |B| {} is above 80 % of the saturation flux density {} (near saturation)",
+                    p.name, crate::output::eng(s.b_peak, "T"), crate::output::eng(bs, "T")
+                ));
+            }
+        }
         parts.insert(
             p.name.clone(),
             PartFigures {
+                apparent_permeability: mu_app,
                 material: p.material.clone(),
                 b_mean_t: s.b_mean,
                 b_peak_t: s.b_peak,
@@ -578,13 +712,24 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             },
         );
     }
+    // Cross-section area (m²) and volume (m³, for the model depth) of a set of regions.
+    let measure = |regions: &[u32]| -> (f64, f64) {
+        let (mut area, mut volume) = (0.0, 0.0);
+        for cell in (0..disc.n_cells()).filter(|&k| regions.contains(&disc.cell_region[k])) {
+            like.quadrature(cell, &fluxpick_solver::quadrature::DEGREE2, |v, dv| {
+                area += if axi { dv / (TAU * v.x[0]) } else { dv };
+                volume += dv * depth;
+            });
+        }
+        (area, volume)
+    };
     let mut coils = BTreeMap::new();
     for (i, c) in case.coils.iter().enumerate() {
         let lam = linkage(i, &total) * depth;
         let (lam_m, lam_p) = (lam.norm(), lam.arg().to_degrees());
         let l = flux_m[i][i];
         // Z = jωλ per ampere of its own current: R_eddy = −ω Im λ.
-        let r_eddy = if ac {
+        let r_eddy = if harmonic.is_some() {
             -omega * lambda_unit[i][i].im * depth
         } else {
             0.0
@@ -597,15 +742,98 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         let emf = C::new(0.0, -omega) * lam;
         let (emf_m, emf_p) = (emf.norm(), emf.arg().to_degrees());
         let r_total = r + r_eddy;
-        let (q, ct, pm) = if ac && l > 0.0 && r_total > 0.0 {
-            (
-                Some(omega * l / r_total),
-                Some(1.0 / (omega * omega * l)),
-                Some(emf_m * emf_m / (4.0 * r_total)),
-            )
-        } else {
-            (None, None, None)
+        let tuned = ac && l > 0.0 && r_total > 0.0;
+        let circuit = case.circuit.as_ref().filter(|k| k.coil == c.name);
+        let tuning = circuit.map_or(circuit::Tuning::Series, |k| match k.tuning {
+            crate::case::Tuning::Series => circuit::Tuning::Series,
+            crate::case::Tuning::Parallel => circuit::Tuning::Parallel,
+            crate::case::Tuning::None => circuit::Tuning::None,
+        });
+        let c_series = tuned.then(|| circuit::series_capacitance(omega, l));
+        let c_parallel = tuned.then(|| circuit::parallel_capacitance(omega, l, r_total));
+        let ct = match tuning {
+            circuit::Tuning::Series => c_series,
+            circuit::Tuning::Parallel => c_parallel,
+            circuit::Tuning::None => None,
         };
+        let q = tuned.then(|| circuit::quality_factor(omega, l, r_total));
+        let pm = tuned.then(|| circuit::matched_power(emf_m, r_total));
+        let cap_v = ct.map(|cap| circuit::capacitor_voltage(tuning, omega, emf_m, l, r_total, cap));
+        let load_ohm = circuit.and_then(|k| match k.load {
+            crate::case::Load::Matched => None,
+            crate::case::Load::Resistance(x) => Some(x),
+        });
+        let load_power = if !tuned {
+            None
+        } else if let Some(rl) = load_ohm {
+            Some(circuit::load_power(
+                tuning,
+                omega,
+                emf_m,
+                l,
+                r_total,
+                ct.unwrap_or(f64::INFINITY),
+                rl,
+            ))
+        } else {
+            pm
+        };
+        let storage = circuit.and_then(|k| k.storage);
+        let (storage_energy, charge_time) = match (storage, load_power) {
+            (Some(st), Some(p)) if p > 0.0 => {
+                let (e, t) = circuit::charge_time(st.capacitance, st.voltage, p);
+                (Some(e), Some(t))
+            }
+            (Some(st), _) => (Some(0.5 * st.capacitance * st.voltage * st.voltage), None),
+            _ => (None, None),
+        };
+        // The window and what it holds.
+        let side0 = model.regions_of(|o| matches!(o, Owner::CoilSide(k, 0, _) if *k == i));
+        let (window_area, _) = measure(&side0);
+        let fit = wire::turns_that_fit(window_area, c.wire.diameter, c.fill_factor);
+        // The core: magnetic parts (μr > 1) inside the coil's span (axisymmetric: from the
+        // axis to the window; planar: between the sides), by their centroid.
+        let span = coil_span(case, &c.window);
+        let core: Vec<usize> = case
+            .parts
+            .iter()
+            .enumerate()
+            .filter(|(_, p)| {
+                case.materials
+                    .get(&p.material)
+                    .is_some_and(|m| m.mu_r > 1.0)
+                    && {
+                        let x = centroid(&p.shape);
+                        x[0] >= span[0][0]
+                            && x[0] <= span[1][0]
+                            && x[1] >= span[0][1]
+                            && x[1] <= span[1][1]
+                    }
+            })
+            .map(|(k, _)| k)
+            .collect();
+        let (core_volume, core_mass) = if core.is_empty() {
+            (None, None)
+        } else {
+            let mut vol = 0.0;
+            let mut mass = Some(0.0);
+            for &k in &core {
+                let (_, v) = measure(&model.regions_of(|o| *o == Owner::Part(k)));
+                vol += v;
+                let rho = case
+                    .materials
+                    .get(&case.parts[k].material)
+                    .and_then(|m| m.density);
+                mass = match (mass, rho) {
+                    (Some(m), Some(rho)) => Some(m + rho * v),
+                    _ => None,
+                };
+            }
+            (Some(vol), mass)
+        };
+        let wire_skin = ac.then(|| {
+            c.wire.diameter / crate::build::skin_depth(case.frequency, 1.0, COPPER_CONDUCTIVITY_20C)
+        });
         coils.insert(
             c.name.clone(),
             CoilFigures {
@@ -625,6 +853,33 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 q,
                 tuning_capacitance_f: ct,
                 matched_power_w: pm,
+                window_area_m2: window_area,
+                turns_that_fit: fit,
+                wire_diameter_over_skin_depth: wire_skin,
+                tuning: match tuning {
+                    circuit::Tuning::Series => "series",
+                    circuit::Tuning::Parallel => "parallel",
+                    circuit::Tuning::None => "none",
+                }
+                .into(),
+                series_capacitance_f: c_series,
+                parallel_capacitance_f: c_parallel,
+                capacitor_voltage_v: cap_v,
+                load_ohm,
+                load_power_w: load_power,
+                storage_energy_j: storage_energy,
+                charge_time_s: charge_time,
+                core_parts: core.iter().map(|&k| case.parts[k].name.clone()).collect(),
+                core_volume_m3: core_volume,
+                core_mass_kg: core_mass,
+                power_per_cm3_w: match (pm, core_volume) {
+                    (Some(p), Some(v)) if v > 0.0 => Some(p / (v * 1e6)),
+                    _ => None,
+                },
+                power_per_gram_w: match (pm, core_mass) {
+                    (Some(p), Some(m)) => Some(p / ((m + mass) * 1e3)),
+                    _ => None,
+                },
                 equivalent_area_m2: match (&case.background, &background) {
                     (Some(b), Some(bg)) if b.b != 0.0 => Some(linkage(i, bg).norm() * depth / b.b),
                     _ => None,
@@ -704,6 +959,52 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                     *j += currents[w] * de.at(x);
                 }
             }
+        }
+    }
+    // Context warnings.
+    if ac && (25.0..=300.0).contains(&case.frequency) {
+        // ICNIRP 2010 reference levels for 25–300 Hz (values from memory of the guideline's
+        // tables): general public 200 µT, occupational 1000 µT (rms).
+        for (name, p) in &probes {
+            let peak = p.b_abs_t.iter().flatten().fold(0.0f64, |a, b| a.max(*b));
+            let level = if peak > 1e-3 {
+                Some("the occupational reference level 1000 µT")
+            } else if peak > 2e-4 {
+                Some("the general-public reference level 200 µT")
+            } else {
+                None
+            };
+            if let Some(l) = level {
+                warnings.push(format!(
+                    "probe `{name}`: |B| up to {} exceeds {l} (ICNIRP 2010, 50/60 Hz): exposure limits apply where people can be",
+                    crate::output::eng(peak, "T")
+                ));
+            }
+        }
+    }
+    for (name, c) in &coils {
+        if let Some(v) = c.capacitor_voltage_v.filter(|v| *v > 50.0) {
+            warnings.push(format!(
+                "coil `{name}`: the tuning capacitor sees about {} rms at resonance (above 50 V): rate it for this, guard it, and discharge it before touching the circuit",
+                crate::output::eng(v, "V")
+            ));
+        }
+        if c.turns > c.turns_that_fit * (1.0 + 1e-9) {
+            warnings.push(format!(
+                "coil `{name}`: {} turns do not fit the window at fill factor (about {:.0} do)",
+                c.turns, c.turns_that_fit
+            ));
+        }
+        if let Some(x) = c.wire_diameter_over_skin_depth.filter(|x| *x > 0.5) {
+            warnings.push(format!(
+                "coil `{name}`: the wire is {x:.2} skin depths thick; skin and proximity effects in the winding are not negligible and are not in `resistance_ohm`"
+            ));
+        }
+        if !axi && !c.core_parts.is_empty() {
+            warnings.push(format!(
+                "coil `{name}`: a planar model treats the core ({}) as infinitely long along the depth; a finite rod is demagnetised much more strongly, so characterise rods with an axisymmetric model",
+                c.core_parts.join(", ")
+            ));
         }
     }
     let energy = (domain_energy(&field[0]) + domain_energy(&field[1])) * depth;

@@ -138,6 +138,11 @@ mod tests {
         let d = awg_diameter_m(30);
         let ratio = resistance_per_metre(d, 100.0) / resistance_per_metre(d, 20.0);
         assert!((ratio - 1.3144).abs() < 1e-9);
+        // At 75 °C (a warm enclosure): 1 + 0.00393 · 55 = 1.21615 times the table's
+        // 0.338550 Ω/m for AWG 30 at 20 °C.
+        let r75 = resistance_per_metre(d, 75.0);
+        assert!((r75 / resistance_per_metre(d, 20.0) - 1.21615).abs() < 1e-9);
+        assert!(rel(r75, 0.338550 * 1.21615) < 5e-4, "{r75}");
     }
 
     #[test]

@@ -71,6 +71,8 @@ pub struct Material {
     pub bh: Option<Vec<[f64; 2]>>,
     /// Saturation flux density, T.
     pub b_sat: Option<f64>,
+    /// Mass density, kg/m³.
+    pub density: Option<f64>,
 }
 
 /// Passive region: core, steel, shield, spacer.
@@ -251,7 +253,7 @@ pub const ALUMINIUM: &str = "aluminium";
 /// The built-in materials (typical values, see [`AIR`], [`COPPER`], [`ALUMINIUM`]); a
 /// `[materials.NAME]` table of the same name replaces one.
 pub fn builtin_materials() -> BTreeMap<String, Material> {
-    let mk = |name: &str, mu_r: f64, conductivity: f64| {
+    let mk = |name: &str, mu_r: f64, conductivity: f64, density: f64| {
         (
             name.to_string(),
             Material {
@@ -260,13 +262,16 @@ pub fn builtin_materials() -> BTreeMap<String, Material> {
                 conductivity,
                 bh: None,
                 b_sat: None,
+                density: Some(density),
             },
         )
     };
+    // Densities: copper 8890 kg/m³ (as for wire, ASTM B258 practice), aluminium 2700,
+    // air 1.2 (typical values, common practice).
     [
-        mk(AIR, 1.0, 0.0),
-        mk(COPPER, 1.0, 5.8e7),
-        mk(ALUMINIUM, 1.0, 3.5e7),
+        mk(AIR, 1.0, 0.0, 1.2),
+        mk(COPPER, 1.0, 5.8e7, 8890.0),
+        mk(ALUMINIUM, 1.0, 3.5e7, 2700.0),
     ]
     .into_iter()
     .collect()

@@ -297,6 +297,9 @@ pub struct RawMaterial {
     /// Optional saturation flux density in T, for reporting core use against it.
     #[serde(default)]
     pub b_sat: Option<SNum>,
+    /// Optional mass density in kg/m³, for the harvested power per gram.
+    #[serde(default)]
+    pub density: Option<SNum>,
 }
 
 with_shape_keys! {

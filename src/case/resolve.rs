@@ -860,6 +860,11 @@ pub(super) fn resolve(
             .as_ref()
             .map(|v| cx.positive(v, &format!("{k}.b_sat"), "the saturation flux density"))
             .transpose()?;
+        let density = mv
+            .density
+            .as_ref()
+            .map(|v| cx.positive(v, &format!("{k}.density"), "the density"))
+            .transpose()?;
         let bh = match &mv.bh {
             None => None,
             Some(curve) => Some(resolve_bh(&cx, curve, &format!("{k}.bh"))?),
@@ -872,6 +877,7 @@ pub(super) fn resolve(
                 conductivity,
                 bh,
                 b_sat,
+                density,
             },
         );
     }
