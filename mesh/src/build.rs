@@ -563,7 +563,9 @@ pub(crate) fn mesh_image(
     if full {
         perim += dist2(arc[n - 1], arc[0]).sqrt();
     }
-    let h = perim / if full { n } else { n - 1 } as f64;
+    // The arc carries edges of ARC_SPACING × the domain's size there; the image's interior
+    // is meshed at the domain's size itself.
+    let h = perim / if full { n } else { n - 1 } as f64 / ARC_SPACING;
     let c2 = [center[0] + offset[0], center[1] + offset[1]];
     let mut pts: Vec<Point> = arc
         .iter()
@@ -572,23 +574,90 @@ pub(crate) fn mesh_image(
     let mut edges: Vec<[usize; 2]> = (0..n - 1).map(|k| [k, k + 1]).collect();
     if full {
         edges.push([n - 1, 0]);
-        pts.push(c2);
-    } else {
-        let ic = pts.len();
-        pts.push(c2);
-        let m = ((radius / h).ceil() as usize).max(1);
-        // cut lines from the centre to both arc ends (a half disk's line goes through it)
-        for &end in &[0usize, n - 1] {
-            let d = [arc[end][0] - center[0], arc[end][1] - center[1]];
-            let mut prev = ic;
-            for k in 1..m {
-                let t = k as f64 / m as f64;
-                let p = [c2[0] + t * d[0], c2[1] + t * d[1]];
-                pts.push(p);
+    }
+    // The image's interior is the far field: nothing varies on a scale finer than the
+    // distance to the arc, so the size grows from h at the arc inward (towards infinity)
+    // at the grading rate. Rings of points at spacing h g^k seed that graded mesh; on cut
+    // disks the ring ends lie on the cut lines, which are chained through them.
+    let g = spec.params.grading.max(1.05);
+    let (t0, t1) = crate::shape::arc_range(cuts);
+    let span = t1 - t0;
+    // Cut lines are axis-parallel: at multiples of π/2 use exact directions, so that the
+    // ring ends lie exactly on the cut line (no near-collinear constraint chains).
+    let unit = |t: f64| {
+        let q = t / std::f64::consts::FRAC_PI_2;
+        let (c, s) = if (q - q.round()).abs() < 1e-12 {
+            match (q.round() as i64).rem_euclid(4) {
+                0 => (1.0, 0.0),
+                1 => (0.0, 1.0),
+                2 => (-1.0, 0.0),
+                _ => (0.0, -1.0),
+            }
+        } else {
+            (t.cos(), t.sin())
+        };
+        [c2[0] + c, c2[1] + s]
+    };
+    let mut rho = radius;
+    let mut step = ARC_SPACING * h;
+    let mut chain_start: Vec<usize> = vec![0];
+    let mut chain_end: Vec<usize> = vec![n - 1];
+    let mut largest = h;
+    let mut ring = 0usize;
+    loop {
+        let next = rho - 0.866 * step;
+        step *= g;
+        if next < 1.5 * step {
+            break;
+        }
+        rho = next;
+        largest = step;
+        let count = ((span * rho / step).ceil() as usize).max(3);
+        ring += 1;
+        let stagger = if ring % 2 == 0 { 0.0 } else { 0.5 };
+        if full {
+            for i in 0..count {
+                let t = t0 + span * (i as f64 + stagger) / count as f64;
+                let u = unit(t);
+                pts.push([c2[0] + rho * (u[0] - c2[0]), c2[1] + rho * (u[1] - c2[1])]);
+            }
+        } else {
+            for i in 0..=count {
+                let t = t0 + span * i as f64 / count as f64;
+                let u = unit(t);
+                pts.push([c2[0] + rho * (u[0] - c2[0]), c2[1] + rho * (u[1] - c2[1])]);
+                let id = pts.len() - 1;
+                if i == 0 {
+                    edges.push([*chain_start.last().expect("chain"), id]);
+                    chain_start.push(id);
+                } else if i == count {
+                    edges.push([*chain_end.last().expect("chain"), id]);
+                    chain_end.push(id);
+                }
+            }
+        }
+    }
+    pts.push(c2);
+    let ic = pts.len() - 1;
+    if !full {
+        // a half disk's cut is one line through the centre; a quarter's two. The last
+        // stretch to the centre is split at about the last ring's radial spacing: kept
+        // constraint edges cannot be split by the refinement.
+        for end in [
+            *chain_start.last().expect("chain"),
+            *chain_end.last().expect("chain"),
+        ] {
+            let a = pts[end];
+            let len = dist2(a, c2).sqrt();
+            let pieces = ((len / (0.866 * step)).ceil() as usize).max(1);
+            let mut prev = end;
+            for k in 1..pieces {
+                let t = k as f64 / pieces as f64;
+                pts.push([a[0] + t * (c2[0] - a[0]), a[1] + t * (c2[1] - a[1])]);
                 edges.push([prev, pts.len() - 1]);
                 prev = pts.len() - 1;
             }
-            edges.push([prev, end]);
+            edges.push([prev, ic]);
         }
     }
     let vertices: Vec<Point2<f64>> = pts.iter().map(|p| Point2::new(p[0], p[1])).collect();
@@ -597,10 +666,12 @@ pub(crate) fn mesh_image(
     if cdt.num_vertices() != nv {
         return Err(MeshError::Insertion);
     }
+    // Vertex budget: a few times the vertices an area-limited mesh of the disk needs.
+    let expected = std::f64::consts::PI * radius * radius / (AREA_FRACTION * h * h);
     let res = cdt.refine(
-        refine_params(spec, 50 * nv + 100_000)
+        refine_params(spec, 4 * expected as usize + 50 * nv + 100_000)
             .keep_constraint_edges()
-            .with_max_allowed_area(AREA_FRACTION * h * h),
+            .with_max_allowed_area(AREA_FRACTION * largest * largest * g * g),
     );
     if !res.refinement_complete {
         return Err(MeshError::RefinementIncomplete {

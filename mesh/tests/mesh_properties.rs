@@ -389,6 +389,28 @@ fn exterior_image_is_glued_node_for_node_to_the_arc() {
     // its triangles meet the same angle bound although its arc edges are fixed.
     let st = m.stats();
     assert!(st.min_angle_deg >= 25.0, "min angle {}", st.min_angle_deg);
+    // The image is graded from the arc size inward (the far field is smooth): for a disk
+    // 60 background sizes across, about a quarter of the triangles of a uniform mesh of its
+    // area (the rings nearest the arc dominate: ~ 2 × arc nodes × 1/(1 − 1/g)).
+    let mut big = s.clone();
+    big.outer = Outer::Disk {
+        center: [0.0, 0.0],
+        radius: 900.0,
+        cuts: Cuts {
+            left: true,
+            ..Cuts::default()
+        },
+    };
+    let mb = generate(&big).unwrap();
+    mb.check_invariants(&big).unwrap();
+    let sb = mb.stats();
+    let uniform = 0.5 * PI * 900.0 * 900.0 / (0.433 * 15.0 * 15.0);
+    let image_triangles = sb.regions[img.region as usize].triangles as f64;
+    assert!(
+        image_triangles < 0.35 * uniform,
+        "{image_triangles} image triangles of {uniform}"
+    );
+    assert!(sb.min_angle_deg >= 25.0, "min angle {}", sb.min_angle_deg);
     let image_area = st.regions[img.region as usize].area;
     // (Its boundary arc is polygonised like the domain's, hence the looser bound.)
     assert!(

@@ -173,8 +173,6 @@ impl HarmonicSolution {
     }
 }
 
-type CLocal = Vec<c64>;
-
 /// Relative residual asked of each inner GMRES solve.
 pub const INNER_TOLERANCE: f64 = 1e-11;
 
@@ -209,19 +207,61 @@ fn dense_solve(mut a: Vec<Vec<c64>>, b: &mut [c64]) -> Option<Vec<c64>> {
     Some(x)
 }
 
+/// One solve at one frequency.
 pub fn solve_harmonic(p: &Problem, frequency: f64) -> Result<HarmonicSolution, SolveError> {
-    match p.order {
-        Order::Linear => solve_with::<3, P1>(p, frequency),
-        Order::Quadratic => solve_with::<6, P2>(p, frequency),
+    HarmonicPlan::new(p)?.solve(frequency)
+}
+
+/// The applied field's parts of the right-hand side: b, −(ν−ν0)/ν K A_b, σM A_b (node
+/// part), b_kᵀ A_b (constraints).
+type BackgroundRhs = ([f64; 2], Vec<f64>, Vec<f64>, Vec<f64>);
+
+/// Everything of a time-harmonic problem that does not depend on the frequency: the
+/// discretisation, the stiffness and conductivity-mass matrices on a fixed pattern, the
+/// symbolic Cholesky analysis, the constraint borders and the source vectors. A frequency
+/// sweep builds it once and calls [`HarmonicPlan::solve`] per frequency (numeric
+/// factorisation and solves only).
+pub struct HarmonicPlan {
+    disc: Arc<Discretisation>,
+    locator: Arc<Locator>,
+    nu: Arc<Vec<Reluctivity>>,
+    sigma: Vec<f64>,
+    constraints: Vec<Constraint>,
+    pattern: Pattern,
+    /// Stiffness K and conductivity mass σM values on the pattern.
+    kvals: Vec<f64>,
+    mvals: Vec<f64>,
+    analysis: CholeskyAnalysis,
+    /// Constraint borders b_k (over the node unknowns) and d_k.
+    bvec: Vec<Vec<f64>>,
+    dk: Vec<f64>,
+    /// Per winding: node and constraint right-hand sides at 1 A.
+    winding_rhs: Vec<(Vec<f64>, Vec<f64>)>,
+    /// Applied field: b, −(ν−ν0)/ν K A_b, M_σ A_b (node part), b_kᵀ A_b (constraints).
+    background: Option<BackgroundRhs>,
+    densities: Vec<Vec<Density>>,
+    setup: Timings,
+}
+
+impl HarmonicPlan {
+    pub fn new(p: &Problem) -> Result<Self, SolveError> {
+        match p.order {
+            Order::Linear => plan_with::<3, P1>(p),
+            Order::Quadratic => plan_with::<6, P2>(p),
+        }
+    }
+
+    pub fn n_dofs(&self) -> usize {
+        self.disc.n_dofs + self.constraints.len()
+    }
+
+    /// Solves at `frequency` (Hz, > 0) reusing the symbolic analysis.
+    pub fn solve(&self, frequency: f64) -> Result<HarmonicSolution, SolveError> {
+        solve_plan(self, frequency)
     }
 }
 
-fn solve_with<const N: usize, B: Basis<N>>(
-    p: &Problem,
-    frequency: f64,
-) -> Result<HarmonicSolution, SolveError> {
-    let omega = TAU * frequency;
-    let jw = c64::new(0.0, omega);
+fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, SolveError> {
     let mut t = Timings::default();
     let t0 = Instant::now();
     let d = Discretisation::new(p.mesh, p.formulation, p.order, &p.dirichlet);
@@ -310,19 +350,31 @@ fn solve_with<const N: usize, B: Basis<N>>(
         }
         b
     };
-    // K + jωσM and its real preconditioner K + ωσM on the node pattern.
-    let values: Vec<c64> = pattern.assemble(d.n_cells(), |c| {
+    // K and σM on the node pattern (K + jωσM and K + ωσM are formed per frequency).
+    let kvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
         let l = &loc[c];
-        let s = sigma[d.cell_region[c] as usize];
-        let mut m: CLocal = vec![c64::new(0.0, 0.0); N * N];
+        let mut m = vec![0.0; N * N];
         for i in 0..N {
             for j in 0..N {
-                m[i * N + j] = c64::new(l.stiffness[i][j], omega * s * l.mass[i][j]);
+                m[i * N + j] = l.stiffness[i][j];
             }
         }
         Some(m)
     });
-    let pvalues: Vec<f64> = values.iter().map(|v| v.re + v.im).collect();
+    let mvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
+        let l = &loc[c];
+        let s = sigma[d.cell_region[c] as usize];
+        if s == 0.0 {
+            return None;
+        }
+        let mut m = vec![0.0; N * N];
+        for i in 0..N {
+            for j in 0..N {
+                m[i * N + j] = s * l.mass[i][j];
+            }
+        }
+        Some(m)
+    });
     // Border: the constraint rows −jω b_kᵀ A + jω d_k ψ_k, b_k = ∫σ N g w, d_k = ∫σ g² w.
     let mut bvec = vec![vec![0.0; nd]; nk];
     let mut dk = vec![0.0; nk];
@@ -348,13 +400,12 @@ fn solve_with<const N: usize, B: Basis<N>>(
     for (c, l) in loc.iter().enumerate() {
         area[d.cell_region[c] as usize] += l.area;
     }
-    let zero = c64::new(0.0, 0.0);
     let scale = if axi { TAU } else { 1.0 };
-    let mut rhs: Vec<(Vec<c64>, Vec<c64>)> = Vec::new();
+    let mut rhs: Vec<(Vec<f64>, Vec<f64>)> = Vec::new();
     let mut densities = Vec::new();
     for (w, wd) in p.windings.iter().enumerate() {
-        let mut f = vec![zero; nd];
-        let mut g = vec![zero; nk];
+        let mut f = vec![0.0; nd];
+        let mut g = vec![0.0; nk];
         let mut dens = Vec::new();
         for wr in &wd.regions {
             match wr.spread {
@@ -379,7 +430,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
                         for (i, &node) in d.cell(c).iter().enumerate() {
                             let dof = d.node_dof[node as usize];
                             if dof != FIXED {
-                                f[dof as usize] += c64::new(l.load[i] * de.coef, 0.0);
+                                f[dof as usize] += l.load[i] * de.coef;
                             }
                         }
                     }
@@ -390,17 +441,19 @@ fn solve_with<const N: usize, B: Basis<N>>(
                         .iter()
                         .position(|k| k.winding == Some(w))
                         .expect("constraint");
-                    g[k] += c64::new(wr.turns * scale, 0.0);
+                    g[k] += wr.turns * scale;
                 }
             }
         }
         densities.push(dens);
         rhs.push((f, g));
     }
+    let mut background = None;
     if let Some(b) = p.background {
         let nu0 = 1.0 / MU0;
-        let mut f = vec![zero; nd];
-        let mut g = vec![zero; nk];
+        let mut fk = vec![0.0; nd];
+        let mut fm = vec![0.0; nd];
+        let mut g = vec![0.0; nk];
         for (c, l) in loc.iter().enumerate() {
             if Some(d.cell_region[c]) == image {
                 continue;
@@ -424,24 +477,85 @@ fn solve_with<const N: usize, B: Basis<N>>(
                 }
                 let ka: f64 = (0..N).map(|j| l.stiffness[i][j] * ab[j]).sum();
                 let ma: f64 = (0..N).map(|j| l.mass[i][j] * ab[j]).sum();
-                f[dof as usize] -= c64::new((nu_c - nu0) / nu_c * ka, omega * s * ma);
+                fk[dof as usize] -= (nu_c - nu0) / nu_c * ka;
+                fm[dof as usize] += s * ma;
             }
             if extra[c] != FIXED {
                 let bb = border(l, s);
                 let sum: f64 = (0..N).map(|i| bb[i] * ab[i]).sum();
-                g[extra[c] as usize] += jw * sum;
+                g[extra[c] as usize] += sum;
             }
         }
-        rhs.push((f, g));
+        background = Some((b, fk, fm, g));
     }
     t.assemble = t0.elapsed().as_secs_f64();
-
-    // Factorise the real preconditioner once.
     let t0 = Instant::now();
     let analysis = CholeskyAnalysis::new(&pattern)?;
     t.symbolic = t0.elapsed().as_secs_f64();
+    let disc = Arc::new(d);
+    let locator = Arc::new(Locator::new(&disc));
+    Ok(HarmonicPlan {
+        disc,
+        locator,
+        nu: Arc::new(nu),
+        sigma,
+        constraints,
+        pattern,
+        kvals,
+        mvals,
+        analysis,
+        bvec,
+        dk,
+        winding_rhs: rhs,
+        background,
+        densities,
+        setup: t,
+    })
+}
+
+fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, SolveError> {
+    let omega = TAU * frequency;
+    let jw = c64::new(0.0, omega);
+    let zero = c64::new(0.0, 0.0);
+    let mut t = plan.setup;
+    let (pattern, bvec, dk) = (&plan.pattern, &plan.bvec, &plan.dk);
+    let nd = plan.disc.n_dofs;
+    let nk = plan.constraints.len();
     let t0 = Instant::now();
-    let chol = analysis.factor(&pattern, &pvalues)?;
+    let values: Vec<c64> = plan
+        .kvals
+        .iter()
+        .zip(&plan.mvals)
+        .map(|(k, m)| c64::new(*k, omega * m))
+        .collect();
+    let pvalues: Vec<f64> = plan
+        .kvals
+        .iter()
+        .zip(&plan.mvals)
+        .map(|(k, m)| k + omega * m)
+        .collect();
+    let mut rhs: Vec<(Vec<c64>, Vec<c64>)> = plan
+        .winding_rhs
+        .iter()
+        .map(|(f, g)| {
+            (
+                f.iter().map(|v| c64::new(*v, 0.0)).collect(),
+                g.iter().map(|v| c64::new(*v, 0.0)).collect(),
+            )
+        })
+        .collect();
+    if let Some((_, fk, fm, g)) = &plan.background {
+        rhs.push((
+            fk.iter()
+                .zip(fm)
+                .map(|(k, m)| c64::new(*k, -omega * m))
+                .collect(),
+            g.iter().map(|v| jw * *v).collect(),
+        ));
+    }
+    t.assemble += t0.elapsed().as_secs_f64();
+    let t0 = Instant::now();
+    let chol = plan.analysis.factor(pattern, &pvalues)?;
     t.factor = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
@@ -471,7 +585,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     // Schur complement of the constraints, C = −jω b: Y_k = Ã⁻¹ (jω b_k) so that
     // A = X0 + Σ Y_k ψ_k, and S ψ = g − Cᵀ X0 with S = D + Cᵀ Y.
     let mut ys = Vec::with_capacity(nk);
-    for b in &bvec {
+    for b in bvec {
         let col: Vec<c64> = b.iter().map(|v| jw * *v).collect();
         ys.push(inner(&col)?);
     }
@@ -529,9 +643,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     }
     let krylov_iterations = iterations;
     let krylov_solves = nk + rhs.len();
-    let nu = Arc::new(nu);
-    let disc = Arc::new(d);
-    let locator = Arc::new(Locator::new(&disc));
+    let (disc, locator, nu) = (&plan.disc, &plan.locator, &plan.nu);
     let expand = |x: &[c64], bg: Option<[f64; 2]>| -> Result<([Field; 2], Vec<c64>), SolveError> {
         let mut re = vec![0.0; disc.points.len()];
         let mut im = vec![0.0; disc.points.len()];
@@ -575,30 +687,31 @@ fn solve_with<const N: usize, B: Basis<N>>(
     };
     let mut unit = Vec::new();
     let mut unit_psi = Vec::new();
-    for x in xs.iter().take(p.windings.len()) {
+    let nw = plan.winding_rhs.len();
+    for x in xs.iter().take(nw) {
         let (f, psi) = expand(x, None)?;
         unit.push(f);
         unit_psi.push(psi);
     }
-    let (background, background_psi) = match p.background {
-        Some(b) => {
-            let (f, psi) = expand(&xs[p.windings.len()], Some(b))?;
+    let (background, background_psi) = match &plan.background {
+        Some((b, ..)) => {
+            let (f, psi) = expand(&xs[nw], Some(*b))?;
             (Some(f), psi)
         }
         None => (None, vec![]),
     };
     Ok(HarmonicSolution {
         frequency,
-        disc,
-        locator,
-        nu,
-        sigma,
-        constraints,
+        disc: disc.clone(),
+        locator: locator.clone(),
+        nu: nu.clone(),
+        sigma: plan.sigma.clone(),
+        constraints: plan.constraints.clone(),
         unit,
         unit_psi,
         background,
         background_psi,
-        densities,
+        densities: plan.densities.clone(),
         timings: t,
         nnz: pattern.nnz(),
         max_residual,

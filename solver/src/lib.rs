@@ -56,7 +56,7 @@ pub mod statics;
 
 pub use discretisation::{Discretisation, Order};
 pub use field::{Field, Locator};
-pub use harmonic::{solve_harmonic, HarmonicSolution};
+pub use harmonic::{solve_harmonic, HarmonicPlan, HarmonicSolution};
 pub use problem::{Problem, RegionMaterial, Spread, Winding, WindingRegion};
 pub use statics::{solve_static, solve_static_with, SourceFn, StaticSolution, Timings};
 
