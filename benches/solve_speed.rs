@@ -1,8 +1,13 @@
-//! Solve-speed benchmark: planar and axisymmetric static cases at about 200k and 1M
-//! unknowns; prints seconds per stage (mesh, assemble, factor, solve, post), unknowns per
+//! Solve-speed benchmark: planar and axisymmetric static cases at about 200k (`small`)
+//! and 1M (`large`) unknowns; prints seconds per stage (mesh, assemble, factor, solve, post), unknowns per
 //! second end to end, and the figure's error against its analytic reference.
 //!
-//! `cargo bench --bench solve_speed` (all sizes) or `cargo bench --bench solve_speed -- small`.
+//! Then a planar eddy-current case (three bars beside a steel wall) at about 200k unknowns
+//! end to end, and a 10-point frequency sweep that keeps the symbolic analysis
+//! (`HarmonicPlan`) against fresh solves.
+//!
+//! `cargo bench --bench solve_speed` (all) or `cargo bench --bench solve_speed -- small`
+//! (also `large`, `eddy`).
 
 use std::time::Instant;
 
@@ -91,6 +96,113 @@ fn bench(name: &str, text: &str, figure: &str, reference: f64) {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// Three copper bars at 630 A in three phases beside a 3 mm steel wall (μr 200, 5 MS/m).
+fn eddy(h_air: f64) -> String {
+    format!(
+        r#"
+[model]
+title = "bench eddy"
+symmetry = "planar"
+frequency = 50
+[domain]
+circle = {{ center = [0, 60], radius = 400 }}
+boundary = "open"
+mesh_size = {h_air}
+[materials.steel]
+mu_r = 200
+conductivity = 5e6
+[[part]]
+name = "wall"
+material = "steel"
+rect = {{ min = [-200, 150], max = [200, 153] }}
+[[conductor]]
+name = "L1"
+rect = {{ min = [-85, -20], max = [-75, 20] }}
+current = 630
+[[conductor]]
+name = "L2"
+rect = {{ min = [-5, -20], max = [5, 20] }}
+current = 630
+phase = -120
+[[conductor]]
+name = "L3"
+rect = {{ min = [75, -20], max = [85, 20] }}
+current = 630
+phase = 120
+"#
+    )
+}
+
+fn eddy_bench() {
+    use fluxpick::build::Model;
+    use fluxpick_solver::{solve_harmonic, HarmonicPlan, Problem};
+    let dir = std::env::temp_dir().join(format!("fluxpick-bench-eddy-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("eddy.toml");
+    std::fs::write(&path, eddy(5.8)).unwrap();
+    let case = load_case(&path).expect("bench case");
+    let t0 = Instant::now();
+    let r = run(&case).expect("bench solve");
+    let total = t0.elapsed().as_secs_f64();
+    let s = &r.results.solve;
+    println!(
+        "{:<24} {:>9} unknowns {:>9} tri | mesh {:>6.2} asm {:>6.2} factor {:>6.2} solve {:>6.2} post {:>6.2} | total {:>6.2} s | {} GMRES iterations",
+        "planar-eddy",
+        r.results.mesh.unknowns,
+        r.results.mesh.triangles,
+        s.mesh_s,
+        s.assemble_s,
+        s.factor_s,
+        s.solve_s,
+        s.post_s,
+        total,
+        s.krylov_iterations.unwrap_or(0)
+    );
+    // Frequency sweep on the same mesh.
+    let model = Model::new(&case).unwrap();
+    let mesh = fluxpick_mesh::generate(&model.spec).unwrap();
+    let problem = Problem {
+        mesh: &mesh,
+        formulation: model.formulation,
+        order: model.order,
+        materials: model.materials(&case).unwrap(),
+        windings: model.windings(&case),
+        background: None,
+        dirichlet: model.dirichlet.clone(),
+    };
+    let t0 = Instant::now();
+    let plan = HarmonicPlan::new(&problem).unwrap();
+    let plan_s = t0.elapsed().as_secs_f64();
+    let freqs: Vec<f64> = (0..10).map(|k| 20.0 * 1.3f64.powi(k)).collect();
+    let mut iters = Vec::new();
+    let mut times = Vec::new();
+    for &f in &freqs {
+        let t0 = Instant::now();
+        let sol = plan.solve(f).unwrap();
+        times.push(t0.elapsed().as_secs_f64());
+        iters.push(sol.krylov_iterations);
+    }
+    println!(
+        "frequency sweep {:.0}–{:.0} Hz, {} unknowns: plan (pattern, element matrices, symbolic analysis) {plan_s:.2} s once; per frequency {:?} s; GMRES iterations {iters:?}",
+        freqs[0],
+        freqs[9],
+        plan.n_dofs(),
+        times.iter().map(|t| (t * 100.0).round() / 100.0).collect::<Vec<_>>()
+    );
+    for k in [0, 9] {
+        let t0 = Instant::now();
+        solve_harmonic(&problem, freqs[k]).unwrap();
+        let fresh = t0.elapsed().as_secs_f64();
+        println!(
+            "  at {:.0} Hz: fresh solve {fresh:.2} s vs {:.2} s from the plan (saves {:.0} %)",
+            freqs[k],
+            times[k],
+            100.0 * (1.0 - times[k] / fresh)
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 fn main() {
     let filter: Vec<String> = std::env::args()
         .skip(1)
@@ -99,11 +211,14 @@ fn main() {
     let want = |n: &str| filter.is_empty() || filter.iter().any(|f| n.contains(f.as_str()));
     let wire = 2e-7 * 100.0 / 0.1;
     if want("small") {
-        bench("planar-small", &planar(2.0, 0.5), "wire", wire);
-        bench("axi-small", &axi(1.4, 0.35), "spheroid", 17.6164);
+        bench("planar-200k", &planar(3.5, 0.9), "wire", wire);
+        bench("axi-200k", &axi(2.0, 0.5), "spheroid", 17.6164);
     }
     if want("large") {
-        bench("planar-large", &planar(0.9, 0.25), "wire", wire);
-        bench("axi-large", &axi(0.63, 0.16), "spheroid", 17.6164);
+        bench("planar-1M", &planar(1.57, 0.4), "wire", wire);
+        bench("axi-1M", &axi(0.9, 0.225), "spheroid", 17.6164);
+    }
+    if want("eddy") {
+        eddy_bench();
     }
 }

@@ -62,3 +62,45 @@ fn open_boundary_figures_do_not_depend_on_air_region_size() {
         assert_rel(key, get(&small, key), get(&large, key), 5e-3);
     }
 }
+
+/// A symmetry plane: the rod coil modelled whole, and as its upper half with a
+/// flux-normal condition on the mid-plane z = 0 (the field crosses it at right angles) and
+/// half the turns. The half model carries the same field, so its flux linkage, equivalent
+/// area and inductance are half the whole model's (common practice, no source).
+#[test]
+fn flux_normal_symmetry_plane_gives_half_the_figures() {
+    let whole = solve_text(&rod_case(300.0, 1e-6));
+    let half_case = rod_case(300.0, 1e-6)
+        .replace(
+            "rect = { min = [0, -300], max = [300, 300] }",
+            "rect = { min = [0, 0], max = [300, 300] }",
+        )
+        .replace(
+            "rect = { min = [0, -100], max = [17.5, 100] }",
+            "rect = { min = [0, 0], max = [17.5, 100] }",
+        )
+        .replace(
+            "rect = { min = [18, -90], max = [27, 90] }",
+            "rect = { min = [18, 0], max = [27, 90] }",
+        )
+        .replace("turns = 12000", "turns = 6000")
+        .replace(
+            "[background]",
+            "[[edge]]\nside = \"bottom\"\ncondition = \"flux-normal\"\n\n[background]",
+        );
+    assert!(half_case.contains("flux-normal") && half_case.contains("min = [0, 0], max = [300"));
+    let half = solve_text(&half_case);
+    for key in [
+        "coils.pickup.inductance_h",
+        "coils.pickup.equivalent_area_m2",
+        "coils.pickup.flux_linkage_wb",
+    ] {
+        assert_rel(key, get(&half, key), 0.5 * get(&whole, key), 5e-3);
+    }
+    assert_rel(
+        "mean |B| in the rod",
+        get(&half, "parts.rod.b_mean_t"),
+        get(&whole, "parts.rod.b_mean_t"),
+        5e-3,
+    );
+}

@@ -61,14 +61,22 @@ pub fn region_flux(parts: &[&Field], regions: &[u32]) -> RegionFlux {
 /// Flux linkage ∫ A j dV of a winding with current density `j` per ampere (Wb-turns; per
 /// metre of depth in planar form).
 pub fn flux_linkage(f: &Field, density: &[Density]) -> f64 {
+    use rayon::prelude::*;
     let d = &f.disc;
-    let mut lambda = 0.0;
-    for c in 0..d.n_cells() {
-        for de in density.iter().filter(|de| de.region == d.cell_region[c]) {
-            f.quadrature(c, &DEGREE6, |v, dv| lambda += v.a * de.at(v.x) * dv);
-        }
+    if density.is_empty() {
+        return 0.0;
     }
-    lambda
+    (0..d.n_cells())
+        .into_par_iter()
+        .filter(|&c| density.iter().any(|de| de.region == d.cell_region[c]))
+        .map(|c| {
+            let mut lambda = 0.0;
+            for de in density.iter().filter(|de| de.region == d.cell_region[c]) {
+                f.quadrature(c, &DEGREE6, |v, dv| lambda += v.a * de.at(v.x) * dv);
+            }
+            lambda
+        })
+        .sum()
 }
 
 /// Inductance matrix of all windings by two independent routes (H; per metre of depth in

@@ -203,26 +203,33 @@ impl Field {
 
     /// Magnetic energy ½∫ν|B|² dV over the cells for which `keep(cell)` holds
     /// (J, per metre of depth in planar form). Image cells hold the exterior's energy.
-    pub fn energy(&self, keep: impl Fn(usize) -> bool) -> f64 {
+    pub fn energy(&self, keep: impl Fn(usize) -> bool + Sync) -> f64 {
         self.coenergy_with(self, keep) * 0.5
     }
 
     /// ∫ν B·B' dV with another field on the same discretisation (mutual energy term).
-    pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool) -> f64 {
-        let rule = &crate::quadrature::DEGREE6;
-        let mut w = 0.0;
-        for c in (0..self.disc.n_cells()).filter(|&c| keep(c)) {
-            let area = Geometry::new(self.disc.vertices(c)).area;
-            for q in rule {
-                let v = self.at_cell(c, q.l);
-                let u = other.at_cell(c, q.l);
-                w += q.w
-                    * area
-                    * v.weight
-                    * self.nu_at(c, v.x)
-                    * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
-            }
-        }
-        w
+    /// The degree-5 rule is exact for B·B' w of second-order planar elements (degree 2) and
+    /// of axisymmetric ones up to the A/r term (degree 3), and for the image's ν ∝ ρ'².
+    pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool + Sync) -> f64 {
+        use rayon::prelude::*;
+        let rule = &crate::quadrature::DEGREE5;
+        (0..self.disc.n_cells())
+            .into_par_iter()
+            .filter(|&c| keep(c))
+            .map(|c| {
+                let area = Geometry::new(self.disc.vertices(c)).area;
+                let mut w = 0.0;
+                for q in rule {
+                    let v = self.at_cell(c, q.l);
+                    let u = other.at_cell(c, q.l);
+                    w += q.w
+                        * area
+                        * v.weight
+                        * self.nu_at(c, v.x)
+                        * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
+                }
+                w
+            })
+            .sum()
     }
 }

@@ -570,25 +570,36 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
             .map(|(a, b)| c64::new(*a, *b))
             .collect()
     };
+    // Schur complement of the constraints, C = −jω b: Y_k = Ã⁻¹ (jω b_k) so that
+    // A = X0 + Σ Y_k ψ_k, and S ψ = g − Cᵀ X0 with S = D + Cᵀ Y. All the inner solves
+    // (one per constraint, one per right-hand side) are independent: run them in parallel.
+    let mut cols: Vec<Vec<c64>> = bvec
+        .iter()
+        .map(|b| b.iter().map(|v| jw * *v).collect())
+        .collect();
+    cols.extend(rhs.iter().map(|(f, _)| f.clone()));
+    let solved: Vec<(Vec<c64>, usize, f64)> = cols
+        .par_iter()
+        .map(|f| {
+            let (x, rep) = gmres(f, &apply, &precond, INNER_TOLERANCE, 40, 3000);
+            (x, rep.iterations, rep.relative_residual)
+        })
+        .collect();
+    drop(cols);
     let mut iterations = 0;
-    let mut inner = |f: &[c64]| -> Result<Vec<c64>, SolveError> {
-        let (x, rep) = gmres(f, apply, precond, INNER_TOLERANCE, 60, 3000);
-        iterations += rep.iterations;
-        if rep.relative_residual.is_nan() || rep.relative_residual > INNER_TOLERANCE * 10.0 {
+    let mut sols = Vec::with_capacity(solved.len());
+    for (x, it, res) in solved {
+        iterations += it;
+        if res.is_nan() || res > INNER_TOLERANCE * 10.0 {
             return Err(SolveError::Residual {
-                residual: rep.relative_residual,
+                residual: res,
                 tolerance: INNER_TOLERANCE,
             });
         }
-        Ok(x)
-    };
-    // Schur complement of the constraints, C = −jω b: Y_k = Ã⁻¹ (jω b_k) so that
-    // A = X0 + Σ Y_k ψ_k, and S ψ = g − Cᵀ X0 with S = D + Cᵀ Y.
-    let mut ys = Vec::with_capacity(nk);
-    for b in bvec {
-        let col: Vec<c64> = b.iter().map(|v| jw * *v).collect();
-        ys.push(inner(&col)?);
+        sols.push(x);
     }
+    let x0s = sols.split_off(nk);
+    let ys = sols;
     let row = |k: usize, x: &[c64]| -> c64 {
         bvec[k].iter().zip(x).fold(zero, |s, (b, x)| s + x * *b) * (-jw)
     };
@@ -599,8 +610,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
         }
     }
     let mut xs: Vec<Vec<c64>> = Vec::with_capacity(rhs.len());
-    for (f, g) in &rhs {
-        let x0 = inner(f)?;
+    for (x0, (_, g)) in x0s.into_iter().zip(&rhs) {
         let mut r: Vec<c64> = (0..nk).map(|k| g[k] - row(k, &x0)).collect();
         let psi = dense_solve(schur.clone(), &mut r).ok_or(SolveError::Singular)?;
         let mut x = x0;
