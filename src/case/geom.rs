@@ -157,6 +157,24 @@ pub fn max_distance_from(shape: &Shape, c: [f64; 2]) -> f64 {
     }
 }
 
+/// Whether all the points lie on one straight line (within `1e-12` of their spread).
+pub fn points_collinear(p: &[[f64; 2]]) -> bool {
+    let Some(&a) = p.first() else {
+        return true;
+    };
+    let d = |q: [f64; 2]| (q[0] - a[0]).hypot(q[1] - a[1]);
+    let far = p
+        .iter()
+        .copied()
+        .fold(a, |m, q| if d(q) > d(m) { q } else { m });
+    let len = d(far);
+    len == 0.0
+        || p.iter().all(|q| {
+            let c = (far[0] - a[0]) * (q[1] - a[1]) - (far[1] - a[1]) * (q[0] - a[0]);
+            c.abs() <= 1e-12 * len * len
+        })
+}
+
 /// Whether the polygon's edges cross or touch anywhere other than at shared vertices of
 /// neighbouring edges (i.e. it is not simple).
 pub fn polygon_self_intersects(p: &[[f64; 2]]) -> bool {

@@ -112,7 +112,39 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
         K::WrongType => "give a value of the type the key expects (see shared/CASE-FORMAT.md)",
         _ => "fix the TOML syntax here",
     };
+    // Text that does not parse has no key path: name the table it is in instead.
+    let table_path = match (&span, table_path.is_empty()) {
+        (Some(s), true) => enclosing_table(text, s.start),
+        _ => table_path,
+    };
     CaseError::new(kind, name, text, span, table_path, msg, help)
+}
+
+/// The table whose header is the last one above the line of byte `pos` (`domain`,
+/// `part[1]` counting the `[[part]]` headers before it), found textually; empty when there
+/// is none.
+fn enclosing_table(text: &str, pos: usize) -> String {
+    let before = text.get(..pos).unwrap_or(text);
+    let above = &before[..before.rfind('\n').map_or(0, |i| i + 1)];
+    let header = |l: &str| {
+        let l = l.split('#').next().unwrap_or("").trim();
+        let array = l.starts_with("[[") && l.ends_with("]]");
+        (l.starts_with('[') && l.ends_with(']')).then(|| {
+            let inner = l.trim_start_matches('[').trim_end_matches(']').trim();
+            (inner.to_string(), array)
+        })
+    };
+    let Some((name, array)) = above.lines().rev().find_map(header) else {
+        return String::new();
+    };
+    if !array {
+        return name;
+    }
+    let n = above
+        .lines()
+        .filter(|l| header(l).is_some_and(|(m, a)| a && m == name))
+        .count();
+    format!("{name}[{}]", n.saturating_sub(1))
 }
 
 fn backticked(s: &str) -> Vec<String> {
@@ -362,6 +394,16 @@ impl Ctx<'_> {
     /// A plain number (no unit applied).
     fn num(&self, v: &SNum, key: &str) -> Result<f64> {
         match v.get_ref() {
+            Num::Value(x) if !x.is_finite() => Err(self.err(
+                K::NotFinite,
+                sp(v),
+                key,
+                format!("{x} is not a finite number"),
+                format!(
+                    "give `{}` an ordinary number: TOML's nan and inf are not valid values",
+                    key.rsplit('.').next().unwrap_or(key)
+                ),
+            )),
             Num::Value(x) => Ok(*x),
             Num::Expr(s) => {
                 let names: Vec<&str> = self.params.keys().map(String::as_str).collect();
@@ -591,15 +633,19 @@ impl Ctx<'_> {
         }
         let (lo, hi) = geom::bbox(&Shape::Polygon(pts.clone()));
         let scale = (hi[0] - lo[0]).powi(2) + (hi[1] - lo[1]).powi(2);
-        if geom::polygon_signed_area(&pts).abs() <= 1e-12 * scale || scale == 0.0 {
-            return Err(self.err(
+        let zero_area = || {
+            self.err(
                 K::BadPolygon,
                 sp(p),
                 key,
                 "the polygon has zero area",
                 "its points must not all lie on one line",
-            ));
+            )
+        };
+        if scale == 0.0 || geom::points_collinear(&pts) {
+            return Err(zero_area());
         }
+        // Before the area: the lobes of a figure of eight cancel in the signed area.
         if geom::polygon_self_intersects(&pts) {
             return Err(self.err(
                 K::BadPolygon,
@@ -608,6 +654,9 @@ impl Ctx<'_> {
                 "the polygon's edges cross each other",
                 "list the corners in order around the outline so that no edges cross",
             ));
+        }
+        if geom::polygon_signed_area(&pts).abs() <= 1e-12 * scale {
+            return Err(zero_area());
         }
         Ok(Shape::Polygon(pts))
     }
