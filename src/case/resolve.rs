@@ -24,6 +24,14 @@ pub const DEFAULT_TEMPERATURE_C: f64 = 20.0;
 /// Default planar depth: 1 m (CASE-FORMAT.md).
 pub const DEFAULT_DEPTH_M: f64 = 1.0;
 
+/// A conductor or a coil side resolved so far, for the overlap check.
+struct Carrier {
+    shape: Shape,
+    span: Range<usize>,
+    key: String,
+    name: String,
+}
+
 // ---------------------------------------------------------------------------------------
 // serde / TOML errors
 
@@ -719,6 +727,35 @@ impl Ctx<'_> {
         Ok(())
     }
 
+    /// Refuses a conductor or coil side that shares area with an earlier one: both impose a
+    /// current, so the one drawn over would silently lose part of its cross-section.
+    fn check_overlap(
+        &self,
+        shape: &Shape,
+        span: &Range<usize>,
+        key: &str,
+        earlier: &[Carrier],
+    ) -> Result<()> {
+        for c in earlier {
+            if geom::overlaps(shape, &c.shape, self.axisym) {
+                let (line, _) = super::error::line_col_of(&self.src.text, c.span.start);
+                return Err(self.err(
+                    K::Overlap,
+                    Some(span.clone()),
+                    key,
+                    format!(
+                        "the shape overlaps `{}` (\"{}\", line {line}): conductors and coil \
+                         sides carry current and cannot share area",
+                        c.key, c.name
+                    ),
+                    "move or shrink one of them: they may touch or share an edge, but only \
+                     parts may lie under later entries",
+                ));
+            }
+        }
+        Ok(())
+    }
+
     /// A length in metres shown in the file's unit.
     fn show(&self, m: f64) -> String {
         format!("{} {}", fmt_g(m / self.unit), self.unit_name)
@@ -999,6 +1036,7 @@ pub(super) fn resolve(
 
     // [[conductor]]
     let mut conductors = Vec::new();
+    let mut carriers: Vec<Carrier> = Vec::new();
     for (i, c) in raw.conductors.iter().enumerate() {
         let path = format!("conductor[{i}]");
         let v = c.get_ref();
@@ -1009,6 +1047,13 @@ pub(super) fn resolve(
         };
         let (shape, span) = cx.shape(v.shape_keys(), &path, c.span(), "the conductor")?;
         cx.check_placement(&shape, &span, &path, &domain)?;
+        cx.check_overlap(&shape, &span, &path, &carriers)?;
+        carriers.push(Carrier {
+            shape: shape.clone(),
+            span,
+            key: path.clone(),
+            name: name.clone(),
+        });
         let current = cx.num(&v.current, &format!("{path}.current"))?;
         let phase_deg = v
             .phase
@@ -1038,7 +1083,7 @@ pub(super) fn resolve(
     for (i, c) in raw.coils.iter().enumerate() {
         let path = format!("coil[{i}]");
         let name = check_name(&c.get_ref().name, &format!("{path}.name"))?;
-        coils.push(resolve_coil(&cx, c, &path, name, &domain)?);
+        coils.push(resolve_coil(&cx, c, &path, name, &domain, &mut carriers)?);
     }
 
     // [circuit]
@@ -1291,6 +1336,7 @@ fn resolve_coil(
     path: &str,
     name: String,
     domain: &Domain,
+    carriers: &mut Vec<Carrier>,
 ) -> Result<Coil> {
     let v = c.get_ref();
     let turns = cx.positive(&v.turns, &format!("{path}.turns"), "the number of turns")?;
@@ -1466,6 +1512,13 @@ fn resolve_coil(
     }
     for (shape, span, key, _) in &windows {
         cx.check_placement(shape, span, key, domain)?;
+        cx.check_overlap(shape, span, key, carriers)?;
+        carriers.push(Carrier {
+            shape: shape.clone(),
+            span: span.clone(),
+            key: key.clone(),
+            name: name.clone(),
+        });
     }
     // Does the copper fit? All the turns pass through every side.
     let copper = turns * std::f64::consts::PI * wire.diameter * wire.diameter / 4.0;
