@@ -787,6 +787,15 @@ pub(super) fn fmt_g(x: f64) -> String {
     }
 }
 
+fn side_name(s: DomainSide) -> &'static str {
+    match s {
+        DomainSide::Left => "left",
+        DomainSide::Right => "right",
+        DomainSide::Bottom => "bottom",
+        DomainSide::Top => "top",
+    }
+}
+
 fn unit_name(u: RawLengthUnit) -> &'static str {
     match u {
         RawLengthUnit::Mm => "mm",
@@ -1180,6 +1189,16 @@ pub(super) fn resolve(
         sweeps.push(resolve_sweep(&cx, s, &format!("sweep[{i}]"), &sweeps)?);
     }
 
+    if conductors.is_empty() && coils.is_empty() && background.is_none() {
+        return Err(cx.err(
+            K::MissingKey,
+            sp(&raw.model),
+            "conductor",
+            "the case has no source of field: no [[conductor]], no [[coil]] and no [background]",
+            "add a [[conductor]] with a current, a [[coil]] (its inductance is computed even \
+             when it carries no current), or a [background] field",
+        ));
+    }
     Ok(Case {
         title,
         symmetry,
@@ -1289,6 +1308,51 @@ fn resolve_domain(cx: &Ctx<'_>, raw: &RawCase) -> Result<Domain> {
             RawEdgeCondition::FluxParallel => EdgeKind::FluxParallel,
         };
         edges.push((side, kind));
+    }
+    if let (BoundaryKind::Open, Shape::Rect { min, max }) = (boundary, &shape) {
+        // The open boundary is a disk cut along at most one line per direction (build.rs).
+        for (a, b) in [
+            (DomainSide::Left, DomainSide::Right),
+            (DomainSide::Bottom, DomainSide::Top),
+        ] {
+            let has = |s| edges.iter().any(|e| e.0 == s);
+            if has(a) && has(b) {
+                let j = edges
+                    .iter()
+                    .rposition(|e| e.0 == a || e.0 == b)
+                    .unwrap_or(0);
+                return Err(cx.err(
+                    K::BadEdge,
+                    sp(&raw.edges[j].get_ref().side),
+                    &format!("edge[{j}].side"),
+                    format!(
+                        "with boundary = \"open\", the {} and {} sides cannot both take an \
+                         edge condition",
+                        side_name(a),
+                        side_name(b)
+                    ),
+                    "model one half and leave the other side open, or use boundary = \"fixed\"",
+                ));
+            }
+        }
+        if cx.axisym && min[0] > 1e-12 * (max[0] - min[0]) {
+            let min_span = d
+                .rect
+                .as_ref()
+                .and_then(|r| r.get_ref().min.as_ref())
+                .map_or(span.clone(), |m| m.span());
+            return Err(cx.err(
+                K::Axisymmetry,
+                Some(min_span),
+                "domain.rect.min",
+                format!(
+                    "with boundary = \"open\", an axisymmetric domain must start at the axis; \
+                     this one starts at r = {}",
+                    cx.show(min[0])
+                ),
+                "start the rect at r = 0, or use boundary = \"fixed\" to leave the axis out",
+            ));
+        }
     }
     Ok(Domain {
         shape,
