@@ -313,6 +313,24 @@ pub fn overlaps(a: &Shape, b: &Shape, right_only: bool) -> bool {
     })
 }
 
+/// The smallest width of a shape: the narrower side of a rect, a circle's diameter, twice
+/// an ellipse's smaller semi-axis, an annulus's ring width, the narrower side of a polygon's
+/// bounding box.
+pub fn smallest_extent(shape: &Shape) -> f64 {
+    match shape {
+        Shape::Rect { min, max } => (max[0] - min[0]).min(max[1] - min[1]),
+        Shape::Circle { radius, .. } => 2.0 * radius,
+        Shape::Ellipse {
+            semi_axes: [a, b], ..
+        } => 2.0 * a.min(*b),
+        Shape::Annulus { inner, outer, .. } => outer - inner,
+        Shape::Polygon(_) => {
+            let (lo, hi) = bbox(shape);
+            (hi[0] - lo[0]).min(hi[1] - lo[1])
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

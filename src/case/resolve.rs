@@ -23,6 +23,21 @@ pub const DEFAULT_FILL_FACTOR: f64 = 0.6;
 pub const DEFAULT_TEMPERATURE_C: f64 = 20.0;
 /// Default planar depth: 1 m (CASE-FORMAT.md).
 pub const DEFAULT_DEPTH_M: f64 = 1.0;
+/// Smallest width of a region as a fraction of the domain's diagonal. The mesher merges
+/// points closer than 1e-9 of it; a circle of radius 1e-7 mm in a 200 mm square domain
+/// vanished in a trial (radius 1e-6 mm still meshed), so this leaves a factor of ten to spare.
+pub const MIN_FEATURE_FRACTION: f64 = 1e-7;
+/// Largest estimated triangle count ([`super::estimated_elements`]) a case may ask for:
+/// about twenty times the largest mesh of the benchmarks (954k triangles). A guard against
+/// slips such as a domain in m with mesh sizes meant in mm (a 2e9 mm square domain at mesh
+/// size 1 mm was still meshing after 60 s in a trial); not a measured capacity.
+pub const MAX_ESTIMATED_TRIANGLES: f64 = 2e7;
+/// Speed of light in vacuum, m/s (exact, SI definition of the metre).
+const SPEED_OF_LIGHT: f64 = 299_792_458.0;
+/// The model neglects displacement current (magnetoquasistatic): the domain must be small
+/// against the free-space wavelength. A tenth is the usual "electrically small" rule of
+/// thumb, no source.
+const MAX_DOMAIN_OVER_WAVELENGTH: f64 = 0.1;
 
 /// A conductor or a coil side resolved so far, for the overlap check.
 struct Carrier {
@@ -724,6 +739,24 @@ impl Ctx<'_> {
                 "enlarge [domain] or move the shape into it",
             ));
         }
+        let (dlo, dhi) = geom::bbox(&domain.shape);
+        let size = (dhi[0] - dlo[0]).hypot(dhi[1] - dlo[1]);
+        let width = geom::smallest_extent(shape);
+        if width < MIN_FEATURE_FRACTION * size {
+            return Err(self.err(
+                K::OutOfRange,
+                Some(span.clone()),
+                key,
+                format!(
+                    "the shape is too small to mesh in this domain: it is {} wide at its \
+                     narrowest, less than {} of the domain's diagonal ({})",
+                    self.show(width),
+                    fmt_g(MIN_FEATURE_FRACTION),
+                    self.show(size)
+                ),
+                "make the shape larger or the domain smaller",
+            ));
+        }
         Ok(())
     }
 
@@ -873,6 +906,30 @@ pub(super) fn resolve(
 
     // [domain] and [[edge]]
     let domain = resolve_domain(&cx, raw)?;
+    if let Some(f) = m.frequency.as_ref().filter(|_| frequency > 0.0) {
+        let (lo, hi) = geom::bbox(&domain.shape);
+        let size = (hi[0] - lo[0]).hypot(hi[1] - lo[1]);
+        let wavelength = SPEED_OF_LIGHT / frequency;
+        if size > MAX_DOMAIN_OVER_WAVELENGTH * wavelength {
+            return Err(cx.err(
+                K::OutOfRange,
+                sp(f),
+                "model.frequency",
+                format!(
+                    "at {} Hz the free-space wavelength ({} m) is not large against the domain \
+                     ({} m across): the model neglects displacement current and does not hold",
+                    fmt_g(frequency),
+                    fmt_g(wavelength),
+                    fmt_g(size)
+                ),
+                format!(
+                    "keep the domain below a tenth of the wavelength: here the frequency must \
+                     not exceed {} Hz",
+                    fmt_g(MAX_DOMAIN_OVER_WAVELENGTH * SPEED_OF_LIGHT / size)
+                ),
+            ));
+        }
+    }
 
     // [background]
     let background = match &raw.background {
@@ -1199,7 +1256,7 @@ pub(super) fn resolve(
              when it carries no current), or a [background] field",
         ));
     }
-    Ok(Case {
+    let case = Case {
         title,
         symmetry,
         frequency,
@@ -1216,7 +1273,68 @@ pub(super) fn resolve(
         circuit,
         probes,
         sweeps,
-    })
+    };
+    check_mesh_size(&cx, raw, &case)?;
+    Ok(case)
+}
+
+/// Refuses a case whose estimated mesh exceeds [`MAX_ESTIMATED_TRIANGLES`], pointing at the
+/// mesh size of the entry that contributes most.
+fn check_mesh_size(cx: &Ctx<'_>, raw: &RawCase, case: &Case) -> Result<()> {
+    use super::summary::Share;
+    let shares = super::summary::element_shares(case);
+    let total: f64 = shares.iter().map(|s| s.1).sum();
+    if total.is_finite() && total <= MAX_ESTIMATED_TRIANGLES {
+        return Ok(());
+    }
+    let (who, _) = shares
+        .iter()
+        .fold((Share::Air, f64::NEG_INFINITY), |best, s| {
+            if s.1 > best.1 {
+                *s
+            } else {
+                best
+            }
+        });
+    let own = match who {
+        Share::Air => None,
+        Share::Part(i) => raw.parts[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("part[{i}].mesh_size"))),
+        Share::Conductor(i) => raw.conductors[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("conductor[{i}].mesh_size"))),
+        Share::Coil(i) => raw.coils[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("coil[{i}].mesh_size"))),
+    };
+    let (span, key) = own.unwrap_or_else(|| {
+        (
+            raw.domain.get_ref().mesh_size.span(),
+            "domain.mesh_size".to_string(),
+        )
+    });
+    Err(cx.err(
+        K::OutOfRange,
+        Some(span),
+        &key,
+        format!(
+            "this mesh size would give about {} triangles, more than the {} a case may ask for",
+            fmt_g(total.round()),
+            fmt_g(MAX_ESTIMATED_TRIANGLES)
+        ),
+        format!(
+            "use a larger mesh size or a smaller domain (lengths are in {}: check \
+             `model.length_unit`)",
+            cx.unit_name
+        ),
+    ))
 }
 
 fn resolve_domain(cx: &Ctx<'_>, raw: &RawCase) -> Result<Domain> {
