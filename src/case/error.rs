@@ -50,8 +50,10 @@ pub enum CaseErrorKind {
     BadEdge,
     /// A sweep without values, or over a name that is not a parameter.
     BadSweep,
-    /// A polygon with fewer than three points or zero area.
+    /// A polygon with fewer than three points, zero area or crossing edges.
     BadPolygon,
+    /// Two current-carrying regions (conductors, coil sides) that share area.
+    Overlap,
     /// A parameter override (from a sweep or the command line) that names no parameter.
     UnknownOverride,
 }

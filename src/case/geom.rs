@@ -157,6 +157,24 @@ pub fn max_distance_from(shape: &Shape, c: [f64; 2]) -> f64 {
     }
 }
 
+/// Whether all the points lie on one straight line (within `1e-12` of their spread).
+pub fn points_collinear(p: &[[f64; 2]]) -> bool {
+    let Some(&a) = p.first() else {
+        return true;
+    };
+    let d = |q: [f64; 2]| (q[0] - a[0]).hypot(q[1] - a[1]);
+    let far = p
+        .iter()
+        .copied()
+        .fold(a, |m, q| if d(q) > d(m) { q } else { m });
+    let len = d(far);
+    len == 0.0
+        || p.iter().all(|q| {
+            let c = (far[0] - a[0]) * (q[1] - a[1]) - (far[1] - a[1]) * (q[0] - a[0]);
+            c.abs() <= 1e-12 * len * len
+        })
+}
+
 /// Whether the polygon's edges cross or touch anywhere other than at shared vertices of
 /// neighbouring edges (i.e. it is not simple).
 pub fn polygon_self_intersects(p: &[[f64; 2]]) -> bool {
@@ -204,6 +222,113 @@ pub fn polygon_self_intersects(p: &[[f64; 2]]) -> bool {
         }
     }
     false
+}
+
+/// Whether `p` lies inside `shape` by more than `margin` (a length): points on the outline,
+/// or within `margin` of it, do not count, so that shapes which only touch never overlap.
+pub fn strictly_inside(shape: &Shape, p: [f64; 2], margin: f64) -> bool {
+    let dist = |c: [f64; 2]| (p[0] - c[0]).hypot(p[1] - c[1]);
+    match shape {
+        Shape::Rect { min, max } => {
+            p[0] > min[0] + margin
+                && p[0] < max[0] - margin
+                && p[1] > min[1] + margin
+                && p[1] < max[1] - margin
+        }
+        Shape::Circle { center, radius } => dist(*center) < radius - margin,
+        Shape::Annulus {
+            center,
+            inner,
+            outer,
+        } => {
+            let d = dist(*center);
+            d > inner + margin && d < outer - margin
+        }
+        Shape::Ellipse {
+            center,
+            semi_axes: [a, b],
+        } => {
+            // Shrink both semi-axes by the margin: a point inside the smaller ellipse is at
+            // least `margin` inside the real one.
+            let (a, b) = (a - margin, b - margin);
+            a > 0.0
+                && b > 0.0
+                && ((p[0] - center[0]) / a).powi(2) + ((p[1] - center[1]) / b).powi(2) < 1.0
+        }
+        Shape::Polygon(v) => {
+            let n = v.len();
+            let mut inside = false;
+            for i in 0..n {
+                let (a, b) = (v[i], v[(i + 1) % n]);
+                // distance to this edge
+                let (ex, ey) = (b[0] - a[0], b[1] - a[1]);
+                let len2 = ex * ex + ey * ey;
+                let t = if len2 > 0.0 {
+                    (((p[0] - a[0]) * ex + (p[1] - a[1]) * ey) / len2).clamp(0.0, 1.0)
+                } else {
+                    0.0
+                };
+                if dist([a[0] + t * ex, a[1] + t * ey]) <= margin {
+                    return false;
+                }
+                // even-odd ray casting towards +x
+                if (a[1] > p[1]) != (b[1] > p[1])
+                    && p[0] < a[0] + (p[1] - a[1]) / (b[1] - a[1]) * (b[0] - a[0])
+                {
+                    inside = !inside;
+                }
+            }
+            inside
+        }
+    }
+}
+
+/// Samples per side of the grid [`overlaps`] tests.
+pub const OVERLAP_SAMPLES: usize = 64;
+
+/// Whether the interiors of `a` and `b` share area, tested at the centres of a
+/// [`OVERLAP_SAMPLES`]² grid over the intersection of their bounding boxes (with `right_only`,
+/// its part at x > 0). Shapes that only touch, or share stretches of edge, never overlap;
+/// an overlap thinner than about 1/64 of that intersection box can be missed.
+pub fn overlaps(a: &Shape, b: &Shape, right_only: bool) -> bool {
+    let ((alo, ahi), (blo, bhi)) = (bbox(a), bbox(b));
+    let mut lo = [alo[0].max(blo[0]), alo[1].max(blo[1])];
+    let hi = [ahi[0].min(bhi[0]), ahi[1].min(bhi[1])];
+    if right_only {
+        lo[0] = lo[0].max(0.0);
+    }
+    if !(hi[0] > lo[0] && hi[1] > lo[1]) {
+        return false;
+    }
+    let scale = (ahi[0] - alo[0]).hypot(ahi[1] - alo[1]) + (bhi[0] - blo[0]).hypot(bhi[1] - blo[1]);
+    let margin = 1e-9 * scale;
+    let n = OVERLAP_SAMPLES;
+    (0..n * n).any(|k| {
+        let (i, j) = (k % n, k / n);
+        let p = [
+            lo[0] + (hi[0] - lo[0]) * (i as f64 + 0.5) / n as f64,
+            lo[1] + (hi[1] - lo[1]) * (j as f64 + 0.5) / n as f64,
+        ];
+        strictly_inside(a, p, margin) && strictly_inside(b, p, margin)
+    })
+}
+
+/// The smallest width of a shape: the narrower side of a rect, a circle's diameter, twice
+/// an ellipse's smaller semi-axis, an annulus's ring width, the narrower side of a polygon's
+/// bounding box.
+pub fn smallest_extent(shape: &Shape) -> f64 {
+    match shape {
+        Shape::Rect { min, max } => (max[0] - min[0]).min(max[1] - min[1]),
+        Shape::Circle { radius, .. } => 2.0 * radius,
+        Shape::Ellipse {
+            semi_axes: [a, b], ..
+        } => 2.0 * a.min(*b),
+        Shape::Annulus { inner, outer, .. } => outer - inner,
+        Shape::Polygon(_) => {
+            let (lo, hi) = bbox(shape);
+            (hi[0] - lo[0]).min(hi[1] - lo[1])
+        }
+    }
 }
 
 #[cfg(test)]
@@ -255,6 +380,55 @@ mod tests {
         };
         let cap = (0.5f64).acos() - 0.5 * 0.75f64.sqrt();
         assert!((area(&c, true) - (PI - cap)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn overlap_needs_shared_area() {
+        let c = |x: f64, y: f64, r: f64| Shape::Circle {
+            center: [x, y],
+            radius: r,
+        };
+        let rect = |x0: f64, y0: f64, x1: f64, y1: f64| Shape::Rect {
+            min: [x0, y0],
+            max: [x1, y1],
+        };
+        // identical, nested, crossing
+        assert!(overlaps(&c(0.0, 0.0, 5.0), &c(0.0, 0.0, 5.0), false));
+        assert!(overlaps(
+            &c(0.0, 0.0, 5.0),
+            &rect(-1.0, -1.0, 1.0, 1.0),
+            false
+        ));
+        assert!(overlaps(&c(0.0, 0.0, 5.0), &c(9.0, 0.0, 5.0), false));
+        // touching at a point, sharing an edge, apart
+        assert!(!overlaps(&c(0.0, 0.0, 5.0), &c(10.0, 0.0, 5.0), false));
+        assert!(!overlaps(
+            &rect(0.0, 0.0, 1.0, 1.0),
+            &rect(1.0, 0.0, 2.0, 1.0),
+            false
+        ));
+        assert!(!overlaps(
+            &rect(0.0, 0.0, 1.0, 1.0),
+            &rect(3.0, 0.0, 4.0, 1.0),
+            false
+        ));
+        // a circle in the hole of an annulus (coaxial conductors) does not overlap it
+        let ring = Shape::Annulus {
+            center: [0.0, 0.0],
+            inner: 4.0,
+            outer: 6.0,
+        };
+        assert!(!overlaps(&ring, &c(0.0, 0.0, 4.0), false));
+        assert!(overlaps(&ring, &c(0.0, 0.0, 4.5), false));
+        // polygons: a triangle over a square's corner; one beside it sharing an edge
+        let sq = Shape::Polygon(vec![[0.0, 0.0], [2.0, 0.0], [2.0, 2.0], [0.0, 2.0]]);
+        let over = Shape::Polygon(vec![[1.5, 1.5], [3.0, 1.5], [1.5, 3.0]]);
+        let beside = Shape::Polygon(vec![[2.0, 0.0], [3.0, 1.0], [2.0, 2.0]]);
+        assert!(overlaps(&sq, &over, false));
+        assert!(!overlaps(&sq, &beside, false));
+        // axisymmetric: an overlap at r < 0 only does not count
+        assert!(!overlaps(&c(-5.0, 0.0, 4.0), &c(-5.0, 0.0, 4.0), true));
+        assert!(overlaps(&c(-1.0, 0.0, 4.0), &c(-1.0, 0.0, 4.0), true));
     }
 
     #[test]

@@ -23,6 +23,29 @@ pub const DEFAULT_FILL_FACTOR: f64 = 0.6;
 pub const DEFAULT_TEMPERATURE_C: f64 = 20.0;
 /// Default planar depth: 1 m (CASE-FORMAT.md).
 pub const DEFAULT_DEPTH_M: f64 = 1.0;
+/// Smallest width of a region as a fraction of the domain's diagonal. The mesher merges
+/// points closer than 1e-9 of it; a circle of radius 1e-7 mm in a 200 mm square domain
+/// vanished in a trial (radius 1e-6 mm still meshed), so this leaves a factor of ten to spare.
+pub const MIN_FEATURE_FRACTION: f64 = 1e-7;
+/// Largest estimated triangle count ([`super::estimated_elements`]) a case may ask for:
+/// about twenty times the largest mesh of the benchmarks (954k triangles). A guard against
+/// slips such as a domain in m with mesh sizes meant in mm (a 2e9 mm square domain at mesh
+/// size 1 mm was still meshing after 60 s in a trial); not a measured capacity.
+pub const MAX_ESTIMATED_TRIANGLES: f64 = 2e7;
+/// Speed of light in vacuum, m/s (exact, SI definition of the metre).
+const SPEED_OF_LIGHT: f64 = 299_792_458.0;
+/// The model neglects displacement current (magnetoquasistatic): the domain must be small
+/// against the free-space wavelength. A tenth is the usual "electrically small" rule of
+/// thumb, no source.
+const MAX_DOMAIN_OVER_WAVELENGTH: f64 = 0.1;
+
+/// A conductor or a coil side resolved so far, for the overlap check.
+struct Carrier {
+    shape: Shape,
+    span: Range<usize>,
+    key: String,
+    name: String,
+}
 
 // ---------------------------------------------------------------------------------------
 // serde / TOML errors
@@ -112,7 +135,39 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
         K::WrongType => "give a value of the type the key expects (see shared/CASE-FORMAT.md)",
         _ => "fix the TOML syntax here",
     };
+    // Text that does not parse has no key path: name the table it is in instead.
+    let table_path = match (&span, table_path.is_empty()) {
+        (Some(s), true) => enclosing_table(text, s.start),
+        _ => table_path,
+    };
     CaseError::new(kind, name, text, span, table_path, msg, help)
+}
+
+/// The table whose header is the last one above the line of byte `pos` (`domain`,
+/// `part[1]` counting the `[[part]]` headers before it), found textually; empty when there
+/// is none.
+fn enclosing_table(text: &str, pos: usize) -> String {
+    let before = text.get(..pos).unwrap_or(text);
+    let above = &before[..before.rfind('\n').map_or(0, |i| i + 1)];
+    let header = |l: &str| {
+        let l = l.split('#').next().unwrap_or("").trim();
+        let array = l.starts_with("[[") && l.ends_with("]]");
+        (l.starts_with('[') && l.ends_with(']')).then(|| {
+            let inner = l.trim_start_matches('[').trim_end_matches(']').trim();
+            (inner.to_string(), array)
+        })
+    };
+    let Some((name, array)) = above.lines().rev().find_map(header) else {
+        return String::new();
+    };
+    if !array {
+        return name;
+    }
+    let n = above
+        .lines()
+        .filter(|l| header(l).is_some_and(|(m, a)| a && m == name))
+        .count();
+    format!("{name}[{}]", n.saturating_sub(1))
 }
 
 fn backticked(s: &str) -> Vec<String> {
@@ -362,6 +417,16 @@ impl Ctx<'_> {
     /// A plain number (no unit applied).
     fn num(&self, v: &SNum, key: &str) -> Result<f64> {
         match v.get_ref() {
+            Num::Value(x) if !x.is_finite() => Err(self.err(
+                K::NotFinite,
+                sp(v),
+                key,
+                format!("{x} is not a finite number"),
+                format!(
+                    "give `{}` an ordinary number: TOML's nan and inf are not valid values",
+                    key.rsplit('.').next().unwrap_or(key)
+                ),
+            )),
             Num::Value(x) => Ok(*x),
             Num::Expr(s) => {
                 let names: Vec<&str> = self.params.keys().map(String::as_str).collect();
@@ -591,15 +656,19 @@ impl Ctx<'_> {
         }
         let (lo, hi) = geom::bbox(&Shape::Polygon(pts.clone()));
         let scale = (hi[0] - lo[0]).powi(2) + (hi[1] - lo[1]).powi(2);
-        if geom::polygon_signed_area(&pts).abs() <= 1e-12 * scale || scale == 0.0 {
-            return Err(self.err(
+        let zero_area = || {
+            self.err(
                 K::BadPolygon,
                 sp(p),
                 key,
                 "the polygon has zero area",
                 "its points must not all lie on one line",
-            ));
+            )
+        };
+        if scale == 0.0 || geom::points_collinear(&pts) {
+            return Err(zero_area());
         }
+        // Before the area: the lobes of a figure of eight cancel in the signed area.
         if geom::polygon_self_intersects(&pts) {
             return Err(self.err(
                 K::BadPolygon,
@@ -608,6 +677,9 @@ impl Ctx<'_> {
                 "the polygon's edges cross each other",
                 "list the corners in order around the outline so that no edges cross",
             ));
+        }
+        if geom::polygon_signed_area(&pts).abs() <= 1e-12 * scale {
+            return Err(zero_area());
         }
         Ok(Shape::Polygon(pts))
     }
@@ -667,6 +739,53 @@ impl Ctx<'_> {
                 "enlarge [domain] or move the shape into it",
             ));
         }
+        let (dlo, dhi) = geom::bbox(&domain.shape);
+        let size = (dhi[0] - dlo[0]).hypot(dhi[1] - dlo[1]);
+        let width = geom::smallest_extent(shape);
+        if width < MIN_FEATURE_FRACTION * size {
+            return Err(self.err(
+                K::OutOfRange,
+                Some(span.clone()),
+                key,
+                format!(
+                    "the shape is too small to mesh in this domain: it is {} wide at its \
+                     narrowest, less than {} of the domain's diagonal ({})",
+                    self.show(width),
+                    fmt_g(MIN_FEATURE_FRACTION),
+                    self.show(size)
+                ),
+                "make the shape larger or the domain smaller",
+            ));
+        }
+        Ok(())
+    }
+
+    /// Refuses a conductor or coil side that shares area with an earlier one: both impose a
+    /// current, so the one drawn over would silently lose part of its cross-section.
+    fn check_overlap(
+        &self,
+        shape: &Shape,
+        span: &Range<usize>,
+        key: &str,
+        earlier: &[Carrier],
+    ) -> Result<()> {
+        for c in earlier {
+            if geom::overlaps(shape, &c.shape, self.axisym) {
+                let (line, _) = super::error::line_col_of(&self.src.text, c.span.start);
+                return Err(self.err(
+                    K::Overlap,
+                    Some(span.clone()),
+                    key,
+                    format!(
+                        "the shape overlaps `{}` (\"{}\", line {line}): conductors and coil \
+                         sides carry current and cannot share area",
+                        c.key, c.name
+                    ),
+                    "move or shrink one of them: they may touch or share an edge, but only \
+                     parts may lie under later entries",
+                ));
+            }
+        }
         Ok(())
     }
 
@@ -698,6 +817,15 @@ pub(super) fn fmt_g(x: f64) -> String {
             }
             _ => s,
         }
+    }
+}
+
+fn side_name(s: DomainSide) -> &'static str {
+    match s {
+        DomainSide::Left => "left",
+        DomainSide::Right => "right",
+        DomainSide::Bottom => "bottom",
+        DomainSide::Top => "top",
     }
 }
 
@@ -778,6 +906,30 @@ pub(super) fn resolve(
 
     // [domain] and [[edge]]
     let domain = resolve_domain(&cx, raw)?;
+    if let Some(f) = m.frequency.as_ref().filter(|_| frequency > 0.0) {
+        let (lo, hi) = geom::bbox(&domain.shape);
+        let size = (hi[0] - lo[0]).hypot(hi[1] - lo[1]);
+        let wavelength = SPEED_OF_LIGHT / frequency;
+        if size > MAX_DOMAIN_OVER_WAVELENGTH * wavelength {
+            return Err(cx.err(
+                K::OutOfRange,
+                sp(f),
+                "model.frequency",
+                format!(
+                    "at {} Hz the free-space wavelength ({} m) is not large against the domain \
+                     ({} m across): the model neglects displacement current and does not hold",
+                    fmt_g(frequency),
+                    fmt_g(wavelength),
+                    fmt_g(size)
+                ),
+                format!(
+                    "keep the domain below a tenth of the wavelength: here the frequency must \
+                     not exceed {} Hz",
+                    fmt_g(MAX_DOMAIN_OVER_WAVELENGTH * SPEED_OF_LIGHT / size)
+                ),
+            ));
+        }
+    }
 
     // [background]
     let background = match &raw.background {
@@ -956,6 +1108,7 @@ pub(super) fn resolve(
 
     // [[conductor]]
     let mut conductors = Vec::new();
+    let mut carriers: Vec<Carrier> = Vec::new();
     for (i, c) in raw.conductors.iter().enumerate() {
         let path = format!("conductor[{i}]");
         let v = c.get_ref();
@@ -966,6 +1119,13 @@ pub(super) fn resolve(
         };
         let (shape, span) = cx.shape(v.shape_keys(), &path, c.span(), "the conductor")?;
         cx.check_placement(&shape, &span, &path, &domain)?;
+        cx.check_overlap(&shape, &span, &path, &carriers)?;
+        carriers.push(Carrier {
+            shape: shape.clone(),
+            span,
+            key: path.clone(),
+            name: name.clone(),
+        });
         let current = cx.num(&v.current, &format!("{path}.current"))?;
         let phase_deg = v
             .phase
@@ -995,7 +1155,7 @@ pub(super) fn resolve(
     for (i, c) in raw.coils.iter().enumerate() {
         let path = format!("coil[{i}]");
         let name = check_name(&c.get_ref().name, &format!("{path}.name"))?;
-        coils.push(resolve_coil(&cx, c, &path, name, &domain)?);
+        coils.push(resolve_coil(&cx, c, &path, name, &domain, &mut carriers)?);
     }
 
     // [circuit]
@@ -1092,7 +1252,17 @@ pub(super) fn resolve(
         sweeps.push(resolve_sweep(&cx, s, &format!("sweep[{i}]"), &sweeps)?);
     }
 
-    Ok(Case {
+    if conductors.is_empty() && coils.is_empty() && background.is_none() {
+        return Err(cx.err(
+            K::MissingKey,
+            sp(&raw.model),
+            "conductor",
+            "the case has no source of field: no [[conductor]], no [[coil]] and no [background]",
+            "add a [[conductor]] with a current, a [[coil]] (its inductance is computed even \
+             when it carries no current), or a [background] field",
+        ));
+    }
+    let case = Case {
         title,
         symmetry,
         frequency,
@@ -1109,7 +1279,68 @@ pub(super) fn resolve(
         circuit,
         probes,
         sweeps,
-    })
+    };
+    check_mesh_size(&cx, raw, &case)?;
+    Ok(case)
+}
+
+/// Refuses a case whose estimated mesh exceeds [`MAX_ESTIMATED_TRIANGLES`], pointing at the
+/// mesh size of the entry that contributes most.
+fn check_mesh_size(cx: &Ctx<'_>, raw: &RawCase, case: &Case) -> Result<()> {
+    use super::summary::Share;
+    let shares = super::summary::element_shares(case);
+    let total: f64 = shares.iter().map(|s| s.1).sum();
+    if total.is_finite() && total <= MAX_ESTIMATED_TRIANGLES {
+        return Ok(());
+    }
+    let (who, _) = shares
+        .iter()
+        .fold((Share::Air, f64::NEG_INFINITY), |best, s| {
+            if s.1 > best.1 {
+                *s
+            } else {
+                best
+            }
+        });
+    let own = match who {
+        Share::Air => None,
+        Share::Part(i) => raw.parts[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("part[{i}].mesh_size"))),
+        Share::Conductor(i) => raw.conductors[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("conductor[{i}].mesh_size"))),
+        Share::Coil(i) => raw.coils[i]
+            .get_ref()
+            .mesh_size
+            .as_ref()
+            .map(|m| (m.span(), format!("coil[{i}].mesh_size"))),
+    };
+    let (span, key) = own.unwrap_or_else(|| {
+        (
+            raw.domain.get_ref().mesh_size.span(),
+            "domain.mesh_size".to_string(),
+        )
+    });
+    Err(cx.err(
+        K::OutOfRange,
+        Some(span),
+        &key,
+        format!(
+            "this mesh size would give about {} triangles, more than the {} a case may ask for",
+            fmt_g(total.round()),
+            fmt_g(MAX_ESTIMATED_TRIANGLES)
+        ),
+        format!(
+            "use a larger mesh size or a smaller domain (lengths are in {}: check \
+             `model.length_unit`)",
+            cx.unit_name
+        ),
+    ))
 }
 
 fn resolve_domain(cx: &Ctx<'_>, raw: &RawCase) -> Result<Domain> {
@@ -1202,6 +1433,51 @@ fn resolve_domain(cx: &Ctx<'_>, raw: &RawCase) -> Result<Domain> {
         };
         edges.push((side, kind));
     }
+    if let (BoundaryKind::Open, Shape::Rect { min, max }) = (boundary, &shape) {
+        // The open boundary is a disk cut along at most one line per direction (build.rs).
+        for (a, b) in [
+            (DomainSide::Left, DomainSide::Right),
+            (DomainSide::Bottom, DomainSide::Top),
+        ] {
+            let has = |s| edges.iter().any(|e| e.0 == s);
+            if has(a) && has(b) {
+                let j = edges
+                    .iter()
+                    .rposition(|e| e.0 == a || e.0 == b)
+                    .unwrap_or(0);
+                return Err(cx.err(
+                    K::BadEdge,
+                    sp(&raw.edges[j].get_ref().side),
+                    &format!("edge[{j}].side"),
+                    format!(
+                        "with boundary = \"open\", the {} and {} sides cannot both take an \
+                         edge condition",
+                        side_name(a),
+                        side_name(b)
+                    ),
+                    "model one half and leave the other side open, or use boundary = \"fixed\"",
+                ));
+            }
+        }
+        if cx.axisym && min[0] > 1e-12 * (max[0] - min[0]) {
+            let min_span = d
+                .rect
+                .as_ref()
+                .and_then(|r| r.get_ref().min.as_ref())
+                .map_or(span.clone(), |m| m.span());
+            return Err(cx.err(
+                K::Axisymmetry,
+                Some(min_span),
+                "domain.rect.min",
+                format!(
+                    "with boundary = \"open\", an axisymmetric domain must start at the axis; \
+                     this one starts at r = {}",
+                    cx.show(min[0])
+                ),
+                "start the rect at r = 0, or use boundary = \"fixed\" to leave the axis out",
+            ));
+        }
+    }
     Ok(Domain {
         shape,
         boundary,
@@ -1248,6 +1524,7 @@ fn resolve_coil(
     path: &str,
     name: String,
     domain: &Domain,
+    carriers: &mut Vec<Carrier>,
 ) -> Result<Coil> {
     let v = c.get_ref();
     let turns = cx.positive(&v.turns, &format!("{path}.turns"), "the number of turns")?;
@@ -1423,6 +1700,13 @@ fn resolve_coil(
     }
     for (shape, span, key, _) in &windows {
         cx.check_placement(shape, span, key, domain)?;
+        cx.check_overlap(shape, span, key, carriers)?;
+        carriers.push(Carrier {
+            shape: shape.clone(),
+            span: span.clone(),
+            key: key.clone(),
+            name: name.clone(),
+        });
     }
     // Does the copper fit? All the turns pass through every side.
     let copper = turns * std::f64::consts::PI * wire.diameter * wire.diameter / 4.0;

@@ -17,6 +17,15 @@ fn triangles(area: f64, h: f64) -> f64 {
     REFINEMENT_ALLOWANCE * area / (EQUILATERAL_AREA * h * h)
 }
 
+/// Which entry a share of [`estimated_elements`] belongs to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum Share {
+    Air,
+    Part(usize),
+    Conductor(usize),
+    Coil(usize),
+}
+
 /// A rough number of triangles: Σ over regions of 2·area / (0.433·h²), h being the region's
 /// mesh size (the domain's when it gives none) and 0.433·h² the area of an equilateral
 /// triangle of edge h. The air counts as the domain area less every region (overlaps are
@@ -24,28 +33,37 @@ fn triangles(area: f64, h: f64) -> f64 {
 /// The open boundary's exterior image, if the solver builds one, is not counted. Good to a
 /// factor of about two: a guide for choosing mesh sizes, not a prediction.
 pub fn estimated_elements(case: &Case) -> f64 {
+    element_shares(case).iter().map(|s| s.1).sum()
+}
+
+/// [`estimated_elements`] entry by entry (a coil's sides together), the air last.
+pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
     let clip = case.symmetry == Symmetry::Axisymmetric;
     let h_air = case.domain.mesh_size;
     let mut regions_area = 0.0;
-    let mut total = 0.0;
-    let mut add = |shape: &Shape, h: Option<f64>| {
+    let mut out = Vec::new();
+    let mut add = |who: Share, shape: &Shape, h: Option<f64>| {
         let a = geom::area(shape, clip);
         regions_area += a;
-        total += triangles(a, h.unwrap_or(h_air).min(h_air));
+        out.push((who, triangles(a, h.unwrap_or(h_air).min(h_air))));
     };
-    for p in &case.parts {
-        add(&p.shape, p.mesh_size);
+    for (i, p) in case.parts.iter().enumerate() {
+        add(Share::Part(i), &p.shape, p.mesh_size);
     }
-    for c in &case.conductors {
-        add(&c.shape, c.mesh_size);
+    for (i, c) in case.conductors.iter().enumerate() {
+        add(Share::Conductor(i), &c.shape, c.mesh_size);
     }
-    for c in &case.coils {
+    for (i, c) in case.coils.iter().enumerate() {
         for (s, _) in c.window.shapes() {
-            add(s, c.mesh_size);
+            add(Share::Coil(i), s, c.mesh_size);
         }
     }
     let domain_area = geom::area(&case.domain.shape, clip);
-    total + triangles((domain_area - regions_area).max(0.0), h_air)
+    out.push((
+        Share::Air,
+        triangles((domain_area - regions_area).max(0.0), h_air),
+    ));
+    out
 }
 
 fn shape_text(s: &Shape, u: f64, unit: &str) -> String {
