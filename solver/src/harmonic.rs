@@ -581,7 +581,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
     let solved: Vec<(Vec<c64>, usize, f64)> = cols
         .par_iter()
         .map(|f| {
-            let (x, rep) = gmres(f, &apply, &precond, INNER_TOLERANCE, 40, 3000);
+            let (x, rep) = gmres(f, apply, precond, INNER_TOLERANCE, 40, 3000);
             (x, rep.iterations, rep.relative_residual)
         })
         .collect();
