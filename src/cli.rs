@@ -45,6 +45,55 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Solve every point of the case's [[sweep]] entries: DIR/sweep.csv, DIR/sweep.json
+    /// and SVG plots of the main figures against each swept parameter.
+    ///
+    /// Example: fluxpick sweep cases/rod-uniform-field.toml --out out/rod-sweep
+    Sweep {
+        case: PathBuf,
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+        /// Run only shard K of N (every N-th point from the K-th), e.g. --shard 2/4, to
+        /// spread a sweep over several machines; join the results with `fluxpick merge`.
+        #[arg(long, value_name = "K/N")]
+        shard: Option<String>,
+        /// A figure to plot by its dotted key (repeatable), e.g. --plot coils.pickup.emf_v;
+        /// default: each coil's EMF, equivalent area, inductance, Q and matched power and
+        /// each part's peak |B|.
+        #[arg(long, value_name = "KEY")]
+        plot: Vec<String>,
+        /// Worker threads (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+    },
+    /// Join the sweep.json files of several shards into one sweep (csv, json, plots).
+    ///
+    /// Example: fluxpick merge out/shard1 out/shard2 --out out/sweep
+    Merge {
+        #[arg(required = true)]
+        dirs: Vec<PathBuf>,
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+    },
+    /// Solve several cases (e.g. core variants) and rank them side by side.
+    ///
+    /// Example: fluxpick compare a.toml b.toml --rank matched_power_w --out out/cmp
+    Compare {
+        #[arg(required = true)]
+        cases: Vec<PathBuf>,
+        /// Coil figure to rank by (descending), e.g. emf_v, q, power_per_gram_w.
+        #[arg(long, default_value = "matched_power_w")]
+        rank: String,
+        /// Also write DIR/compare.md and DIR/compare.csv.
+        #[arg(long, value_name = "DIR")]
+        out: Option<PathBuf>,
+    },
+}
+
+fn parse_shard(s: &str) -> Option<(usize, usize)> {
+    let (k, n) = s.split_once('/')?;
+    let (k, n) = (k.trim().parse().ok()?, n.trim().parse().ok()?);
+    (n >= 1 && (1..=n).contains(&k)).then_some((k, n))
 }
 
 fn load(path: &Path) -> Result<Case, i32> {
@@ -145,5 +194,124 @@ fn execute(cli: Cli) -> Result<(), i32> {
             }
             Ok(())
         }
+        Command::Sweep {
+            case,
+            out,
+            shard,
+            plot,
+            threads,
+        } => {
+            let shard = match shard.as_deref().map(|s| (s, parse_shard(s))) {
+                None => None,
+                Some((_, Some(k))) => Some(k),
+                Some((s, None)) => {
+                    eprintln!("error: --shard {s}: write K/N with 1 <= K <= N, e.g. --shard 2/4");
+                    return Err(2);
+                }
+            };
+            let (raw, text) = crate::case::load(&case).map_err(|e| {
+                eprintln!("{:?}", miette::Report::new(e));
+                2
+            })?;
+            let src = crate::case::SourceInfo::new(case.display().to_string(), text);
+            let c = crate::case::resolve(&raw, &src, &Default::default()).map_err(|e| {
+                eprintln!("{:?}", miette::Report::new(e));
+                2
+            })?;
+            if c.sweeps.is_empty() {
+                eprintln!(
+                    "error: {}: the case has no [[sweep]] entry; add one, e.g.\n  [[sweep]]\n  parameter = \"L\"\n  values = [50, 100, 150]",
+                    case.display()
+                );
+                return Err(2);
+            }
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(threads.unwrap_or(0))
+                .build()
+                .map_err(|e| {
+                    eprintln!("error: cannot start the worker threads: {e}");
+                    1
+                })?;
+            let t0 = std::time::Instant::now();
+            let rec = pool.install(|| crate::sweep::run_sweep(&raw, &src, &c, shard, true));
+            let secs = t0.elapsed().as_secs_f64();
+            finish_sweep(&out, &rec, &plot, secs)
+        }
+        Command::Merge { dirs, out } => {
+            let mut recs = Vec::new();
+            for d in &dirs {
+                let p = d.join("sweep.json");
+                let text = std::fs::read_to_string(&p).map_err(|e| {
+                    eprintln!("error: cannot read {}: {e}", p.display());
+                    2
+                })?;
+                let rec: crate::sweep::SweepRecord = serde_json::from_str(&text).map_err(|e| {
+                    eprintln!("error: {}: not a sweep record: {e}", p.display());
+                    2
+                })?;
+                recs.push(rec);
+            }
+            let rec = crate::sweep::merge(&recs).map_err(|e| {
+                eprintln!("error: {e}");
+                2
+            })?;
+            if rec.points.len() < rec.total_points {
+                eprintln!(
+                    "note: {} of {} points present (shards missing?)",
+                    rec.points.len(),
+                    rec.total_points
+                );
+            }
+            finish_sweep(&out, &rec, &[], 0.0)
+        }
+        Command::Compare { cases, rank, out } => crate::compare::run(&cases, &rank, out.as_deref()),
+    }
+}
+
+/// Writes a sweep's files and prints what it did; exit 1 when any point failed.
+fn finish_sweep(
+    out: &Path,
+    rec: &crate::sweep::SweepRecord,
+    plot: &[String],
+    secs: f64,
+) -> Result<(), i32> {
+    let keys = if plot.is_empty() {
+        crate::sweep::default_plot_keys(rec)
+    } else {
+        plot.to_vec()
+    };
+    let plots = crate::sweep::write_outputs(out, rec, &keys, "case units").map_err(|e| {
+        eprintln!("error: {e}");
+        1
+    })?;
+    let failed: Vec<&crate::sweep::PointResult> =
+        rec.points.iter().filter(|p| p.error.is_some()).collect();
+    if secs > 0.0 {
+        println!(
+            "{} points in {secs:.1} s ({:.2} points/s), {} failed",
+            rec.points.len(),
+            rec.points.len() as f64 / secs,
+            failed.len()
+        );
+    } else {
+        println!("{} points, {} failed", rec.points.len(), failed.len());
+    }
+    println!(
+        "wrote {}/sweep.csv, sweep.json and {} plots",
+        out.display(),
+        plots.len()
+    );
+    for p in &failed {
+        eprintln!(
+            "point {} ({:?}) failed: {}",
+            p.index,
+            p.parameters,
+            p.error.as_deref().unwrap_or("")
+        );
+    }
+    if failed.is_empty() {
+        Ok(())
+    } else {
+        Err(1)
     }
 }

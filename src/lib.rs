@@ -3,10 +3,13 @@
 //!
 //! Data flows one way: case file ([`case`]) → model ([`build`]) → mesh (fluxpick-mesh) →
 //! solve (fluxpick-solver) → figures (fluxpick-postproc, [`study`]) → files ([`output`]).
-//! The command-line front end is [`cli`]; `src/main.rs` only calls it.
+//! Studies of many solves are in [`sweep`]. The command-line front end is [`cli`];
+//! `src/main.rs` only calls it.
 
 pub mod build;
 pub mod case;
 pub mod cli;
+pub mod compare;
 pub mod output;
 pub mod study;
+pub mod sweep;

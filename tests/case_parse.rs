@@ -253,7 +253,8 @@ fn contract_example_is_accepted_as_written() {
         c.sweeps,
         vec![Sweep {
             parameter: "L".into(),
-            values: vec![50.0, 100.0, 150.0, 200.0]
+            values: vec![50.0, 100.0, 150.0, 200.0],
+            group: None,
         }]
     );
     assert_eq!(

@@ -76,6 +76,9 @@ pub fn flux_linkage(f: &Field, density: &[Density]) -> f64 {
             }
             lambda
         })
+        // in cell order, summed serially: deterministic on any number of threads
+        .collect::<Vec<f64>>()
+        .iter()
         .sum()
 }
 

@@ -207,8 +207,8 @@ impl Field {
         self.coenergy_with(self, keep) * 0.5
     }
 
-    /// ∫ν B·B' dV with another field on the same discretisation (mutual energy term).
-    /// The degree-5 rule is exact for B·B' w of second-order planar elements (degree 2) and
+    /// ∫ν B·B' dV with another field on the same discretisation (mutual energy term),
+    /// deterministic whatever the thread count. The degree-5 rule is exact for B·B' w of second-order planar elements (degree 2) and
     /// of axisymmetric ones up to the A/r term (degree 3), and for the image's ν ∝ ρ'².
     pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool + Sync) -> f64 {
         use rayon::prelude::*;
@@ -230,6 +230,10 @@ impl Field {
                 }
                 w
             })
+            // collected in cell order and summed serially: the same bits on any number
+            // of threads
+            .collect::<Vec<f64>>()
+            .iter()
             .sum()
     }
 }

@@ -212,6 +212,8 @@ pub struct Probe {
 pub struct Sweep {
     pub parameter: String,
     pub values: Vec<f64>,
+    /// Sweeps of one group move together (the k-th values of each form one point).
+    pub group: Option<String>,
 }
 
 /// A whole validated case.

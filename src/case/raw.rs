@@ -451,4 +451,7 @@ pub struct RawSweep {
     pub to: Option<SNum>,
     #[serde(default)]
     pub steps: Option<SNum>,
+    /// Entries with the same group move together (zipped) instead of forming a grid.
+    #[serde(default)]
+    pub group: Option<Spanned<String>>,
 }

@@ -1909,8 +1909,28 @@ fn resolve_sweep(
             ))
         }
     };
+    let group = v.group.as_ref().map(|g| g.get_ref().clone());
+    if let (Some(g), Some(gs)) = (&group, &v.group) {
+        if let Some(e) = earlier.iter().find(|e| e.group.as_ref() == Some(g)) {
+            if e.values.len() != values.len() {
+                return Err(cx.err(
+                    K::BadSweep,
+                    sp(gs),
+                    &format!("{path}.group"),
+                    format!(
+                        "group `{g}` moves its parameters together, but `{}` has {} values and `{p}` has {}",
+                        e.parameter,
+                        e.values.len(),
+                        values.len()
+                    ),
+                    "give every sweep of a group the same number of values",
+                ));
+            }
+        }
+    }
     Ok(Sweep {
         parameter: p.clone(),
         values,
+        group,
     })
 }
