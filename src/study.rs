@@ -90,6 +90,8 @@ pub struct ConductorFigures {
     pub ac_dc_ratio: Option<f64>,
     /// 2W/I² of its own field inside the conductor (internal inductance).
     pub internal_inductance_h: f64,
+    /// ω × internal inductance (null when static).
+    pub internal_reactance_ohm: Option<f64>,
     /// Flux route (at f > 0: Im(Z)/ω) for the model's extent: in planar form the loop
     /// closes at the outer boundary (or at infinity for an open one: grows with its size).
     pub inductance_h: f64,
@@ -707,6 +709,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 dc_resistance_ohm: r_dc,
                 ac_dc_ratio: (r_dc > 0.0).then(|| r_ac / r_dc),
                 internal_inductance_h: l_int,
+                internal_reactance_ohm: ac.then_some(omega * l_int),
                 inductance_h: flux_m[w][w],
                 skin_depth_m: skin_of(&c.name),
             },
