@@ -44,6 +44,9 @@ pub enum Command {
         /// Also print results.json on standard output.
         #[arg(long)]
         json: bool,
+        /// Also write DIR/field.svg: |B| shading, flux lines and outlines.
+        #[arg(long)]
+        plot: bool,
     },
     /// Solve every point of the case's [[sweep]] entries: DIR/sweep.csv, DIR/sweep.json
     /// and SVG plots of the main figures against each swept parameter.
@@ -174,12 +177,25 @@ fn execute(cli: Cli) -> Result<(), i32> {
             println!("wrote {}", path.display());
             Ok(())
         }
-        Command::Solve { case, out, json } => {
+        Command::Solve {
+            case,
+            out,
+            json,
+            plot,
+        } => {
             let c = load(&case)?;
             let r = run(&c).map_err(|e| study_fail(&case, e))?;
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let vtu = out.join("field.vtu");
             output::write_field_vtu(&vtu, &c, &r).map_err(|e| io_fail("field", &vtu, e))?;
+            if plot {
+                let svg = out.join("field.svg");
+                fluxpick_postproc::atomic_write(
+                    &svg,
+                    crate::picture::field_svg(&r, 720).as_bytes(),
+                )
+                .map_err(|e| io_fail("picture", &svg, e))?;
+            }
             let res = out.join("results.json");
             output::write_results_json(&res, &r.results)
                 .map_err(|e| io_fail("results", &res, e))?;

@@ -11,5 +11,6 @@ pub mod case;
 pub mod cli;
 pub mod compare;
 pub mod output;
+pub mod picture;
 pub mod study;
 pub mod sweep;

@@ -146,3 +146,24 @@ fn mesh_writes_a_readable_mesh_vtu() {
         angle.iter().copied().fold(90.0, f64::min)
     );
 }
+
+/// `solve --plot` writes a field picture: an SVG with the |B| shading, flux lines, the
+/// outlines and a colour bar labelled in tesla.
+#[test]
+fn solve_plot_writes_a_field_picture() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let o = fluxpick(&[
+        "solve",
+        repo().join("cases/feeder-pair.toml").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--plot",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let svg = std::fs::read_to_string(out.join("field.svg")).unwrap();
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    assert!(svg.matches("<rect").count() > 100, "shading");
+    assert!(svg.contains(r#"stroke="white""#) && svg.contains(r#"stroke="black""#));
+    assert!(svg.contains("contours of A") && svg.contains("T</text>"));
+}
