@@ -78,6 +78,27 @@ pub enum Command {
         #[arg(long, value_name = "DIR")]
         out: PathBuf,
     },
+    /// Placement map: a pickup (axisymmetric case in a uniform axial field) placed at every
+    /// point of a probe of a planar survey case (conductors, steel): EMF and matched power
+    /// for the best and for a fixed orientation, with the best positions.
+    ///
+    /// Example: fluxpick map cases/busbar-survey.toml --pickup cases/rod-uniform-field.toml --out out/map
+    Map {
+        survey: PathBuf,
+        #[arg(long, value_name = "CASE")]
+        pickup: PathBuf,
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+        /// The survey probe to map over (default: its first).
+        #[arg(long)]
+        probe: Option<String>,
+        /// Fixed orientation of the pickup's axis, degrees from +x.
+        #[arg(long, default_value_t = 90.0)]
+        axis: f64,
+        /// How many best positions to list.
+        #[arg(long, default_value_t = 5)]
+        best: usize,
+    },
     /// Solve several cases (e.g. core variants) and rank them side by side.
     ///
     /// Example: fluxpick compare a.toml b.toml --rank matched_power_w --out out/cmp
@@ -280,6 +301,14 @@ fn execute(cli: Cli) -> Result<(), i32> {
             }
             finish_sweep(&out, &rec, &[], 0.0)
         }
+        Command::Map {
+            survey,
+            pickup,
+            out,
+            probe,
+            axis,
+            best,
+        } => crate::map::run(&survey, &pickup, probe.as_deref(), axis, best, &out),
         Command::Compare { cases, rank, out } => crate::compare::run(&cases, &rank, out.as_deref()),
     }
 }

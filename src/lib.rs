@@ -10,6 +10,7 @@ pub mod build;
 pub mod case;
 pub mod cli;
 pub mod compare;
+pub mod map;
 pub mod output;
 pub mod picture;
 pub mod study;

@@ -11,7 +11,7 @@ use std::fmt::Write as _;
 use crate::study::Run;
 
 /// A dark-to-light colour ramp of our own (blue-violet through teal to pale yellow).
-fn ramp(t: f64) -> (u8, u8, u8) {
+pub fn ramp(t: f64) -> (u8, u8, u8) {
     const STOPS: [(f64, [f64; 3]); 5] = [
         (0.0, [28.0, 20.0, 70.0]),
         (0.3, [40.0, 80.0, 150.0]),

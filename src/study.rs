@@ -271,7 +271,8 @@ fn coil_span(case: &Case, window: &CoilWindow) -> [[f64; 2]; 2] {
     [lo, hi]
 }
 
-fn shape_bbox(shape: &Shape) -> ([f64; 2], [f64; 2]) {
+/// Bounding box `(min, max)` of a shape.
+pub fn shape_bbox(shape: &Shape) -> ([f64; 2], [f64; 2]) {
     match shape {
         Shape::Rect { min, max } => (*min, *max),
         Shape::Circle { center, radius } => (
