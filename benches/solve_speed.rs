@@ -7,7 +7,7 @@
 //! (`HarmonicPlan`) against fresh solves.
 //!
 //! `cargo bench --bench solve_speed` (all) or `cargo bench --bench solve_speed -- small`
-//! (also `large`, `eddy`).
+//! (also `large`, `eddy`, `sweep`: a 50-point axisymmetric sweep, points per second).
 
 use std::time::Instant;
 
@@ -203,6 +203,26 @@ fn eddy_bench() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// 50 points of the rod L/D study (axisymmetric, default accuracy), in parallel.
+fn sweep_bench() {
+    let text = std::fs::read_to_string("cases/rod-aspect-study.toml").expect("example case");
+    let text = text.replace(
+        "values = [2, 3, 5, 8, 12, 20]",
+        "from = 2\nto = 20\nsteps = 50",
+    );
+    let src = fluxpick::case::SourceInfo::new("rod-aspect-study (50 points)", text.clone());
+    let raw = fluxpick::case::parse_str("rod-aspect-study", &text).expect("parse");
+    let case = fluxpick::case::resolve(&raw, &src, &Default::default()).expect("resolve");
+    let t0 = Instant::now();
+    let rec = fluxpick::sweep::run_sweep(&raw, &src, &case, None, false);
+    let secs = t0.elapsed().as_secs_f64();
+    let failed = rec.points.iter().filter(|p| p.error.is_some()).count();
+    println!(
+        "sweep 50-point axisymmetric L/D study: {secs:.2} s, {:.2} points/s, {failed} failed (goal: under 30 s)",
+        rec.points.len() as f64 / secs
+    );
+}
+
 fn main() {
     let filter: Vec<String> = std::env::args()
         .skip(1)
@@ -220,5 +240,8 @@ fn main() {
     }
     if want("eddy") {
         eddy_bench();
+    }
+    if want("sweep") {
+        sweep_bench();
     }
 }

@@ -76,7 +76,12 @@ fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64), i32>
         .as_ref()
         .map(|c| c.coil.clone())
         .or_else(|| case.coils.first().map(|c| c.name.clone()))
-        .ok_or_else(|| fail(format!("{}: the pickup case has no [[coil]]", path.display())))?;
+        .ok_or_else(|| {
+            fail(format!(
+                "{}: the pickup case has no [[coil]]",
+                path.display()
+            ))
+        })?;
     let run = study::run(case).map_err(|e| {
         eprintln!("error: {}: {e}", path.display());
         e.exit_code()
@@ -189,8 +194,16 @@ pub fn run(
             angle_deg: e.angle_deg,
             emf_best_v: emf_best,
             emf_fixed_v: emf_fixed,
-            power_best_w: if r > 0.0 { emf_best * emf_best / (4.0 * r) } else { 0.0 },
-            power_fixed_w: if r > 0.0 { emf_fixed * emf_fixed / (4.0 * r) } else { 0.0 },
+            power_best_w: if r > 0.0 {
+                emf_best * emf_best / (4.0 * r)
+            } else {
+                0.0
+            },
+            power_fixed_w: if r > 0.0 {
+                emf_fixed * emf_fixed / (4.0 * r)
+            } else {
+                0.0
+            },
             nonuniform,
         });
     }
@@ -302,13 +315,18 @@ fn write_outputs(
     // VTK: a grid probe as triangles with point data; a line as a strip of points
     let mut grid = Grid::default();
     let by_pos = |p: [f64; 2]| rec.points.iter().find(|q| q.x_m == p[0] && q.y_m == p[1]);
-    if let ProbeKind::Grid { points: [nx, ny], .. } = probe.kind {
+    if let ProbeKind::Grid {
+        points: [nx, ny], ..
+    } = probe.kind
+    {
         grid.points = pts.to_vec();
         for j in 0..ny.saturating_sub(1) {
             for i in 0..nx.saturating_sub(1) {
                 let id = |i: usize, j: usize| (j * nx + i) as u32;
-                grid.cells.push(vec![id(i, j), id(i + 1, j), id(i + 1, j + 1)]);
-                grid.cells.push(vec![id(i, j), id(i + 1, j + 1), id(i, j + 1)]);
+                grid.cells
+                    .push(vec![id(i, j), id(i + 1, j), id(i + 1, j + 1)]);
+                grid.cells
+                    .push(vec![id(i, j), id(i + 1, j + 1), id(i, j + 1)]);
             }
         }
         grid.cell_types = vec![VTK_TRIANGLE; grid.cells.len()];
@@ -335,7 +353,11 @@ fn write_outputs(
 fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> String {
     let mut s = String::new();
     match probe.kind {
-        ProbeKind::Grid { min, max, points: [nx, ny] } => {
+        ProbeKind::Grid {
+            min,
+            max,
+            points: [nx, ny],
+        } => {
             // one cell per point, centred on it; square cells when the spacings agree
             let (dx_m, dy_m) = (
                 (max[0] - min[0]) / (nx.max(2) - 1) as f64,
@@ -350,7 +372,12 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                     h - 0.5 * cell_y - (p[1] - min[1]) / dy_m.max(1e-300) * cell_y,
                 )
             };
-            let vals: Vec<f64> = rec.points.iter().map(|p| p.emf_best_v).filter(|v| *v > 0.0).collect();
+            let vals: Vec<f64> = rec
+                .points
+                .iter()
+                .map(|p| p.emf_best_v)
+                .filter(|v| *v > 0.0)
+                .collect();
             let lo = vals.iter().copied().fold(f64::INFINITY, f64::min);
             let hi = vals.iter().copied().fold(0.0f64, f64::max);
             let (l0, l1) = (lo.max(hi * 1e-4).log10(), hi.log10());
@@ -360,7 +387,11 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                 h + 40.0
             );
             for p in &rec.points {
-                let t = if l1 > l0 { (p.emf_best_v.max(1e-300).log10() - l0) / (l1 - l0) } else { 1.0 };
+                let t = if l1 > l0 {
+                    (p.emf_best_v.max(1e-300).log10() - l0) / (l1 - l0)
+                } else {
+                    1.0
+                };
                 let (r, g, b) = crate::picture::ramp(t);
                 let (x, y) = to_px([p.x_m, p.y_m]);
                 let _ = writeln!(
@@ -394,9 +425,11 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                     match owner.get(&key) {
                         Some(&r2) if r2 != r => {
                             let (p, q) = (to_px(m.points[a as usize]), to_px(m.points[b as usize]));
-                            let inside = |p: (f64, f64)| p.0 >= 0.0 && p.0 <= w && p.1 >= 0.0 && p.1 <= h;
+                            let inside =
+                                |p: (f64, f64)| p.0 >= 0.0 && p.0 <= w && p.1 >= 0.0 && p.1 <= h;
                             if inside(p) && inside(q) {
-                                let _ = write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
+                                let _ =
+                                    write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
                             }
                         }
                         Some(_) => {}
@@ -406,7 +439,10 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                     }
                 }
             }
-            let _ = writeln!(s, r#"<path d="{path}" stroke="white" stroke-width="1.5" fill="none"/>"#);
+            let _ = writeln!(
+                s,
+                r#"<path d="{path}" stroke="white" stroke-width="1.5" fill="none"/>"#
+            );
             let _ = writeln!(
                 s,
                 r#"<text x="8" y="{:.0}">EMF at the best orientation, log scale {} … {}; crossed cells: field varies &gt; 5 % along the core</text></svg>"#,
@@ -428,7 +464,10 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                 let root = SVGBackend::with_string(&mut s, (720, 420)).into_drawing_area();
                 let _ = root.fill(&WHITE);
                 if let Ok(mut chart) = ChartBuilder::on(&root)
-                    .caption("EMF at the best orientation along the probe", ("sans-serif", 18))
+                    .caption(
+                        "EMF at the best orientation along the probe",
+                        ("sans-serif", 18),
+                    )
                     .margin(14)
                     .x_label_area_size(36)
                     .y_label_area_size(70)

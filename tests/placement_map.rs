@@ -89,7 +89,12 @@ mesh_size = 0.5
         serde_json::from_str(&std::fs::read_to_string(out.join("map.json")).unwrap()).unwrap();
     // the pickup's equivalent area is N π r² (r the window's mean radius; thin window)
     let a_eq = get(&map, "equivalent_area_m2");
-    assert_rel("equivalent area", a_eq, 200.0 * std::f64::consts::PI * 0.01f64.powi(2), 2e-3);
+    assert_rel(
+        "equivalent area",
+        a_eq,
+        200.0 * std::f64::consts::PI * 0.01f64.powi(2),
+        2e-3,
+    );
     let map_emf = get(&map, "points.0.emf_fixed_v");
     assert_rel(
         "best and fixed orientation agree on the pair's axis",
