@@ -11,7 +11,8 @@
 //! * fixed orientation (an axis angle from +x): EMF = ω A_eq |B · n|;
 //! * matched power EMF² / (4 R), R the coil's winding plus induced resistance.
 //!
-//! The uniform-field assumption is checked: a point is flagged where |B| along the core's
+//! Points where the pickup (core length along the best axis, outer radius) would not fit
+//! in air are left out. The uniform-field assumption is checked: a point is flagged where |B| along the core's
 //! length (± half its length along the best axis) differs by more than 5 % from the centre.
 //! The pickup's own effect on the survey field (its core gathering flux from the conductors'
 //! field) is in A_eq; its effect on nearby steel is not.
@@ -63,8 +64,8 @@ fn fail(msg: String) -> i32 {
     2
 }
 
-/// The pickup's figures: (A_eq, L, R, core length along the axis).
-fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64), i32> {
+/// The pickup's figures: (A_eq, L, R, core length along the axis, outer radius).
+fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64, f64), i32> {
     if case.symmetry != Symmetry::Axisymmetric || case.background.is_none() {
         return Err(fail(format!(
             "{}: the pickup case must be axisymmetric with a [background] axial field (it gives the coil's equivalent area)",
@@ -108,11 +109,22 @@ fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64), i32>
         let (lo, hi) = crate::study::shape_bbox(s);
         z = (z.0.min(lo[1]), z.1.max(hi[1]));
     }
+    // outer radius of the pickup: its coil windows and core parts
+    let mut radius: f64 = 0.0;
+    for k in case.coils.iter().filter(|k| k.name == coil) {
+        for (s, _) in k.window.shapes() {
+            radius = radius.max(crate::study::shape_bbox(s).1[0]);
+        }
+    }
+    for p in &parts {
+        radius = radius.max(crate::study::shape_bbox(&p.shape).1[0]);
+    }
     Ok((
         a_eq,
         c.inductance_h,
         c.resistance_ohm + c.eddy_resistance_ohm,
         (z.1 - z.0).max(0.0),
+        radius,
     ))
 }
 
@@ -147,7 +159,7 @@ pub fn run(
             probe_name.map_or(String::new(), |n| format!(" named `{n}`"))
         ))
     })?;
-    let (a_eq, l, r, core_len) = pickup_figures(pickup_path, &pickup)?;
+    let (a_eq, l, r, core_len, radius) = pickup_figures(pickup_path, &pickup)?;
     let run = study::run(&survey).map_err(|e| {
         eprintln!("error: {}: {e}", survey_path.display());
         e.exit_code()
@@ -174,11 +186,26 @@ pub fn run(
             continue;
         };
         let e = field_ellipse(a.b, b.b);
+        // the pickup (its length along the best axis, its outer radius either side) must
+        // fit in air: sampled on 9 lines of 21 points
+        let t = e.angle_deg.to_radians();
+        let h = 0.5 * core_len;
+        let fits = (0..=20).all(|k| {
+            let s = -1.0 + 0.1 * k as f64;
+            (0..=8).map(|j| -1.0 + 0.25 * j as f64).all(|side| {
+                let q = [
+                    p[0] + s * h * t.cos() - side * radius * t.sin(),
+                    p[1] + s * h * t.sin() + side * radius * t.cos(),
+                ];
+                matches!(re.locator.locate(&re.disc, q), Some((cell, _)) if re.disc.cell_region[cell] == 0)
+            })
+        });
+        if !fits {
+            continue;
+        }
         let along = (a.b[0] * n[0] + a.b[1] * n[1]).hypot(b.b[0] * n[0] + b.b[1] * n[1]);
         let emf_best = omega * a_eq * e.major_t;
         let emf_fixed = omega * a_eq * along;
-        let t = e.angle_deg.to_radians();
-        let h = 0.5 * core_len;
         let centre = b_abs(p).unwrap_or(0.0);
         let nonuniform = [1.0, -1.0].iter().any(|s| {
             match b_abs([p[0] + s * h * t.cos(), p[1] + s * h * t.sin()]) {
@@ -256,6 +283,11 @@ pub fn run(
             } else {
                 ""
             }
+        );
+    }
+    if order.first().is_some_and(|p| p.emf_best_v > 50.0) {
+        println!(
+            "caution: EMF above 50 V at the best positions; a tuned pickup's capacitor sees about Q times that. Treat the coil and its circuit as hazardous, and follow local rules for work near live conductors"
         );
     }
     println!(
