@@ -446,29 +446,12 @@ fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> Str
                 }
             }
             // outlines of the survey's parts and conductors
-            let m = &run.mesh;
-            let mut owner = std::collections::HashMap::new();
             let mut path = String::new();
-            for (t, tri) in m.triangles.iter().enumerate() {
-                let r = m.triangle_region[t];
-                for k in 0..3 {
-                    let (a, b) = (tri[k], tri[(k + 1) % 3]);
-                    let key = (a.min(b), a.max(b));
-                    match owner.get(&key) {
-                        Some(&r2) if r2 != r => {
-                            let (p, q) = (to_px(m.points[a as usize]), to_px(m.points[b as usize]));
-                            let inside =
-                                |p: (f64, f64)| p.0 >= 0.0 && p.0 <= w && p.1 >= 0.0 && p.1 <= h;
-                            if inside(p) && inside(q) {
-                                let _ =
-                                    write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
-                            }
-                        }
-                        Some(_) => {}
-                        None => {
-                            owner.insert(key, r);
-                        }
-                    }
+            let inside = |p: (f64, f64)| p.0 >= 0.0 && p.0 <= w && p.1 >= 0.0 && p.1 <= h;
+            for (a, b) in crate::picture::region_outlines(&run.mesh) {
+                let (p, q) = (to_px(a), to_px(b));
+                if inside(p) && inside(q) {
+                    let _ = write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
                 }
             }
             let _ = writeln!(

@@ -27,6 +27,32 @@ pub fn ramp(t: f64) -> (u8, u8, u8) {
     (c(0), c(1), c(2))
 }
 
+/// The mesh edges between triangles of different regions (the outlines of every part,
+/// conductor and coil side), the exterior image left out.
+pub fn region_outlines(m: &fluxpick_mesh::Mesh) -> Vec<([f64; 2], [f64; 2])> {
+    let image = m.exterior.as_ref().map(|e| e.region);
+    let mut owner: HashMap<(u32, u32), u32> = HashMap::new();
+    let mut out = Vec::new();
+    for (t, tri) in m.triangles.iter().enumerate() {
+        let r = m.triangle_region[t];
+        if Some(r) == image {
+            continue;
+        }
+        for k in 0..3 {
+            let (a, b) = (tri[k], tri[(k + 1) % 3]);
+            let key = (a.min(b), a.max(b));
+            match owner.get(&key) {
+                Some(&r2) if r2 != r => out.push((m.points[a as usize], m.points[b as usize])),
+                Some(_) => {}
+                None => {
+                    owner.insert(key, r);
+                }
+            }
+        }
+    }
+    out
+}
+
 /// The picture, `width` pixels wide, as SVG text.
 pub fn field_svg(run: &Run, width: usize) -> String {
     let d = &run.disc;
@@ -194,31 +220,14 @@ pub fn field_svg(run: &Run, width: usize) -> String {
         }
     }
     // outlines: mesh edges between different regions, and the outer boundary
-    let mut owner: HashMap<(u32, u32), u32> = HashMap::new();
     let mut outline = String::new();
     let m = &run.mesh;
     let to_px = |p: [f64; 2]| ((p[0] - lo[0]) / px, (hi[1] - p[1]) / px);
     let inside = |p: (f64, f64)| p.0 >= -1.0 && p.0 <= wpx + 1.0 && p.1 >= -1.0 && p.1 <= hpx + 1.0;
-    for (t, tri) in m.triangles.iter().enumerate() {
-        let r = m.triangle_region[t];
-        if Some(r) == image {
-            continue;
-        }
-        for k in 0..3 {
-            let (a, b) = (tri[k], tri[(k + 1) % 3]);
-            let key = (a.min(b), a.max(b));
-            match owner.get(&key) {
-                Some(&r2) if r2 != r => {
-                    let (p, q) = (to_px(m.points[a as usize]), to_px(m.points[b as usize]));
-                    if inside(p) || inside(q) {
-                        let _ = write!(outline, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
-                    }
-                }
-                Some(_) => {}
-                None => {
-                    owner.insert(key, r);
-                }
-            }
+    for (a, b) in region_outlines(m) {
+        let (p, q) = (to_px(a), to_px(b));
+        if inside(p) || inside(q) {
+            let _ = write!(outline, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
         }
     }
     for e in &m.boundary_edges {
