@@ -443,6 +443,16 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
     let omega = TAU * case.frequency;
     let ac = case.frequency > 0.0;
     let mut warnings = Vec::new();
+    for (name, m) in &case.materials {
+        let used = case.parts.iter().any(|p| &p.material == name)
+            || case.conductors.iter().any(|c| &c.material == name);
+        if used && m.bh.is_some() {
+            warnings.push(format!(
+                "material `{name}`: its B-H curve is not used yet; this version solves with the linear μr {} (saturation is not modelled: compare peak |B| with the curve yourself)",
+                m.mu_r
+            ));
+        }
+    }
     let model = Model::new(case)?;
     let t0 = Instant::now();
     let mesh = mesh_model(case, &model)?;
