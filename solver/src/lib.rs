@@ -44,12 +44,14 @@
 //! ```
 
 pub mod assembly;
+pub mod bh;
 pub mod discretisation;
 pub mod element;
 pub mod field;
 pub mod harmonic;
 pub mod krylov;
 pub mod linsolve;
+pub mod nonlinear;
 pub mod problem;
 pub mod quadrature;
 pub mod statics;
