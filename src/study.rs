@@ -14,6 +14,8 @@ use std::sync::Arc;
 
 use fluxpick_postproc::figures::{domain_energy, flux_linkage, region_flux};
 use fluxpick_postproc::{circuit, probe, wire};
+use fluxpick_solver::bh::BhCurve;
+use fluxpick_solver::nonlinear::{solve_nonlinear, NewtonOptions, NonlinearError};
 use fluxpick_solver::{
     solve_harmonic, solve_static, Discretisation, Field, Formulation, HarmonicSolution, Problem,
     SolveError, StaticSolution,
@@ -28,6 +30,10 @@ use crate::case::{Case, CoilWindow, ConductorKind, ProbeKind, Shape, Symmetry};
 pub enum StudyError {
     #[error(transparent)]
     Build(#[from] BuildError),
+    #[error("material `{0}`: {1}")]
+    Curve(String, fluxpick_solver::bh::BhError),
+    #[error("the saturating solve failed: {0}")]
+    Newton(String),
     #[error("meshing failed: {0}")]
     Mesh(#[from] fluxpick_mesh::MeshError),
     #[error("`{0}` is wholly covered by entries drawn after it (parts, then conductors, then coils, each in file order), so nothing of it is left to mesh")]
@@ -41,7 +47,8 @@ impl StudyError {
     pub fn exit_code(&self) -> i32 {
         match self {
             StudyError::Build(_) => 2,
-            StudyError::Hidden(_) => 2,
+            StudyError::Hidden(_) | StudyError::Curve(..) => 2,
+            StudyError::Newton(_) => 1,
             StudyError::Mesh(_) | StudyError::Solve(_) => 1,
         }
     }
@@ -204,6 +211,9 @@ pub struct SolveFigures {
     pub max_relative_residual: f64,
     pub method: String,
     pub krylov_iterations: Option<usize>,
+    /// With B-H curves: Newton iterations and the relative residual after each.
+    pub newton_iterations: Option<usize>,
+    pub residual_history: Option<Vec<f64>>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -446,10 +456,10 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
     for (name, m) in &case.materials {
         let used = case.parts.iter().any(|p| &p.material == name)
             || case.conductors.iter().any(|c| &c.material == name);
-        if used && m.bh.is_some() {
+        if used && m.bh.is_some() && case.frequency > 0.0 {
             warnings.push(format!(
-                "material `{name}`: its B-H curve is not used yet; this version solves with the linear μr {} (saturation is not modelled: compare peak |B| with the curve yourself)",
-                m.mu_r
+                "material `{name}`: its B-H curve is used only at 0 Hz; at {} Hz this version solves with the linear μr {} (saturation is not modelled: compare peak |B| with the curve yourself)",
+                case.frequency, m.mu_r
             ));
         }
     }
@@ -472,8 +482,44 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         background: bvec,
         dirichlet: model.dirichlet.clone(),
     };
+    // Nonlinear regions (0 Hz only): the curve of each region's material.
+    let curves: Vec<Option<BhCurve>> = if case.frequency > 0.0 {
+        vec![]
+    } else {
+        model
+            .owners
+            .iter()
+            .map(|o| {
+                let mat = match o {
+                    Owner::Part(i) => Some(&case.parts[*i].material),
+                    Owner::Conductor(i) => Some(&case.conductors[*i].material),
+                    _ => None,
+                }?;
+                let pts = case.materials.get(mat)?.bh.as_ref()?;
+                Some(BhCurve::new(pts).map_err(|e| (mat.clone(), e)))
+            })
+            .map(|c| c.transpose())
+            .collect::<Result<_, _>>()
+            .map_err(|(m, e)| StudyError::Curve(m, e))?
+    };
+    let mut newton = None;
     let solved = if has_eddy_currents(case) {
         Solved::Harmonic(solve_harmonic(&problem, case.frequency)?)
+    } else if curves.iter().any(|c| c.is_some()) {
+        let currents: Vec<f64> = case
+            .coils
+            .iter()
+            .map(|c| c.current)
+            .chain(case.conductors.iter().map(|c| c.current))
+            .collect();
+        let nl = solve_nonlinear(&problem, &curves, &currents, NewtonOptions::default()).map_err(
+            |e| match e {
+                NonlinearError::Solve(s) => StudyError::Solve(s),
+                e => StudyError::Newton(e.to_string()),
+            },
+        )?;
+        newton = Some((nl.field, nl.report));
+        Solved::Static(nl.linear)
     } else {
         Solved::Static(solve_static(&problem)?)
     };
@@ -534,7 +580,17 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
     if let (Some(b), Some(bg)) = (&case.background, &background) {
         parts_list.push((C::from_polar(1.0, b.phase_deg.to_radians()), bg));
     }
-    let total = combine(&parts_list, &like, nk);
+    let mut total = combine(&parts_list, &like, nk);
+    if let Some((f, _)) = &newton {
+        // the Newton solve's field replaces the superposition (which does not hold)
+        total = Phasor {
+            f: [f.clone(), zero_like(f)],
+            psi: vec![],
+        };
+        warnings.push(
+            "saturating materials: figures are from the Newton solve at the case's currents and field; inductances (both routes) are those of the unsaturated materials (their μr), not incremental values at this operating point".to_string(),
+        );
+    }
     let field = total.f.clone();
     let axi = case.symmetry == Symmetry::Axisymmetric;
     let depth = if axi { 1.0 } else { case.depth };
@@ -895,6 +951,8 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                     _ => None,
                 },
                 equivalent_area_m2: match (&case.background, &background) {
+                    // with saturation: the total flux linkage over the applied b
+                    (Some(b), Some(_)) if b.b != 0.0 && newton.is_some() => Some(lam.norm() / b.b),
                     (Some(b), Some(bg)) if b.b != 0.0 => Some(linkage(i, bg).norm() * depth / b.b),
                     _ => None,
                 },
@@ -1095,6 +1153,8 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             max_relative_residual: max_residual,
             method: method.into(),
             krylov_iterations: iterations,
+            newton_iterations: newton.as_ref().map(|n| n.1.iterations),
+            residual_history: newton.as_ref().map(|n| n.1.residual_history.clone()),
         },
         warnings,
     };

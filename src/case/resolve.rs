@@ -1506,13 +1506,22 @@ fn resolve_bh(cx: &Ctx<'_>, curve: &Spanned<Vec<Pt>>, key: &str) -> Result<Vec<[
         }
         pts.push(q);
     }
-    if pts.len() < 2 {
+    if pts.len() < 3 {
         return Err(cx.err(
             K::OutOfRange,
             sp(curve),
             key,
-            "a B-H curve needs at least 2 points",
-            "list the curve as [[H A/m, B T], ...]",
+            format!("a B-H curve needs at least 3 points (got {})", pts.len()),
+            "list the curve as [[0, 0], [H A/m, B T], ...] from the origin upwards",
+        ));
+    }
+    if pts[0] != [0.0, 0.0] {
+        return Err(cx.err(
+            K::OutOfRange,
+            sp(curve),
+            &format!("{key}[0]"),
+            "a B-H curve must start at the origin",
+            "make the first point [0, 0]",
         ));
     }
     Ok(pts)
