@@ -68,3 +68,22 @@ fn saturating_rod_collects_less_per_tesla_as_the_field_rises() {
     // saturated (peak above the curve's 0.5 T at 30 mT applied): well below the linear figure
     assert!(last < 0.7 * get(&lin, "coils.pickup.equivalent_area_m2"));
 }
+
+/// A built-in typical curve by name solves through Newton and reports its iterations.
+#[test]
+fn built_in_curve_by_name() {
+    let r = solve_text(&rod(
+        2e-2,
+        "[materials.ferrite]\nmu_r = 2000\nbh_curve = \"mnzn-ferrite\"\n",
+    ));
+    let n = r["solve"]["newton_iterations"]
+        .as_u64()
+        .expect("Newton iterations");
+    let h = r["solve"]["residual_history"].as_array().expect("history");
+    assert_eq!(h.len() as u64, n + 1);
+    assert!(h.last().unwrap().as_f64().unwrap() < 1e-8);
+    assert!(
+        get(&r, "parts.rod.b_peak_t") > 0.3,
+        "saturating at 20 mT applied"
+    );
+}

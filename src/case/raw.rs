@@ -294,6 +294,10 @@ pub struct RawMaterial {
     /// Optional B-H curve, `[[H A/m, B T], ...]`.
     #[serde(default)]
     pub bh: Option<Spanned<Vec<Pt>>>,
+    /// A built-in typical B-H curve by name instead of `bh`: "mild-steel",
+    /// "electrical-steel" or "mnzn-ferrite".
+    #[serde(default)]
+    pub bh_curve: Option<Spanned<String>>,
     /// Optional saturation flux density in T, for reporting core use against it.
     #[serde(default)]
     pub b_sat: Option<SNum>,

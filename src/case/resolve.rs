@@ -1017,9 +1017,47 @@ pub(super) fn resolve(
             .as_ref()
             .map(|v| cx.positive(v, &format!("{k}.density"), "the density"))
             .transpose()?;
-        let bh = match &mv.bh {
-            None => None,
-            Some(curve) => Some(resolve_bh(&cx, curve, &format!("{k}.bh"))?),
+        let bh = match (&mv.bh, &mv.bh_curve) {
+            (Some(_), Some(named)) => {
+                return Err(cx.err(
+                    K::ShapeKeys,
+                    sp(named),
+                    &format!("{k}.bh_curve"),
+                    "give either `bh` (points) or `bh_curve` (a built-in curve), not both",
+                    "remove one of them",
+                ))
+            }
+            (None, None) => None,
+            (Some(curve), None) => Some(resolve_bh(&cx, curve, &format!("{k}.bh"))?),
+            (None, Some(named)) => {
+                use fluxpick_solver::bh::typical;
+                let pts: &[[f64; 2]] = match named.get_ref().as_str() {
+                    "mild-steel" => &typical::MILD_STEEL,
+                    "electrical-steel" => &typical::ELECTRICAL_STEEL,
+                    "mnzn-ferrite" => &typical::MNZN_FERRITE,
+                    other => {
+                        let names = ["mild-steel", "electrical-steel", "mnzn-ferrite"];
+                        let help = match nearest(other, names.iter().copied()) {
+                            Some(m) => format!(
+                                "did you mean `{m}`? The built-in curves are {}",
+                                names.join(", ")
+                            ),
+                            None => format!(
+                                "the built-in curves are {}; or give `bh` points",
+                                names.join(", ")
+                            ),
+                        };
+                        return Err(cx.err(
+                            K::UnknownKey,
+                            sp(named),
+                            &format!("{k}.bh_curve"),
+                            format!("no built-in B-H curve `{other}`"),
+                            help,
+                        ));
+                    }
+                };
+                Some(pts.to_vec())
+            }
         };
         materials.insert(
             name.clone(),
