@@ -173,6 +173,37 @@ impl<const N: usize> System<'_, N> {
     }
 }
 
+/// Σ_w I_w ∫ j_w N_i w over the node unknowns (j_w: winding w's density per ampere).
+fn source_vector<const N: usize, B: Basis<N>>(
+    d: &Discretisation,
+    densities: &[Vec<Density>],
+    currents: &[f64],
+) -> Vec<f64> {
+    let mut f = vec![0.0; d.n_dofs];
+    for c in 0..d.n_cells() {
+        let g = Geometry::new(d.vertices(c));
+        let mut v = [0.0; N];
+        let mut any = false;
+        for (w, dens) in densities.iter().enumerate() {
+            let i_w = currents.get(w).copied().unwrap_or(0.0);
+            for de in dens.iter().filter(|de| de.region == d.cell_region[c]) {
+                any = true;
+                for q in &DEGREE5 {
+                    let pb = point_basis::<N, B>(&g, q.l, d.formulation);
+                    let dw = q.w * g.area * pb.weight * i_w * de.at(pb.x);
+                    for i in 0..N {
+                        v[i] += dw * pb.n[i];
+                    }
+                }
+            }
+        }
+        if any {
+            scatter_vector(d, c, &v, &mut f);
+        }
+    }
+    f
+}
+
 fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
 }
@@ -213,29 +244,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
             *v = background_potential(d.formulation, b, d.points[n]);
         }
     }
-    // sources: Σ I_w ∫ j_w N_i w
-    let mut f = vec![0.0; d.n_dofs];
-    for c in 0..d.n_cells() {
-        let g = Geometry::new(d.vertices(c));
-        let mut v = [0.0; N];
-        let mut any = false;
-        for (w, dens) in linear.densities.iter().enumerate() {
-            let i_w = currents.get(w).copied().unwrap_or(0.0);
-            for de in dens.iter().filter(|de| de.region == d.cell_region[c]) {
-                any = true;
-                for q in &DEGREE5 {
-                    let pb = point_basis::<N, B>(&g, q.l, d.formulation);
-                    let dw = q.w * g.area * pb.weight * i_w * de.at(pb.x);
-                    for i in 0..N {
-                        v[i] += dw * pb.n[i];
-                    }
-                }
-            }
-        }
-        if any {
-            scatter_vector(&d, c, &v, &mut f);
-        }
-    }
+    let f = source_vector::<N, B>(&d, &linear.densities, currents);
     let pattern = Pattern::new(&d);
     let sys = System::<N> {
         d: &d,
@@ -380,23 +389,7 @@ pub fn residual_and_jacobian(
                     None => Law::Linear(linear.nu[r]),
                 })
                 .collect();
-            let mut f = vec![0.0; d.n_dofs];
-            for c in 0..d.n_cells() {
-                let g = Geometry::new(d.vertices(c));
-                let mut v = [0.0; $n];
-                for (w, dens) in linear.densities.iter().enumerate() {
-                    for de in dens.iter().filter(|de| de.region == d.cell_region[c]) {
-                        for q in &DEGREE5 {
-                            let pb = point_basis::<$n, $b>(&g, q.l, d.formulation);
-                            let dw = q.w * g.area * pb.weight * currents[w] * de.at(pb.x);
-                            for i in 0..$n {
-                                v[i] += dw * pb.n[i];
-                            }
-                        }
-                    }
-                }
-                scatter_vector(&d, c, &v, &mut f);
-            }
+            let f = source_vector::<$n, $b>(&d, &linear.densities, currents);
             let sys = System::<$n> {
                 d: &d,
                 laws,
