@@ -211,3 +211,37 @@ mesh_size = 0.5
         0.01,
     );
 }
+
+/// 1000 turns of AWG 30 (0.2546 mm bare, ASTM B258) pass the bare-copper check at fill
+/// 0.7 in an 80 mm² window (1099 fit), but with grade-2 enamel (about 0.288 mm, value from
+/// memory) at a packing of 0.78 only about 880 fit: a warning says so.
+#[test]
+fn enamelled_winding_that_does_not_fit_is_warned() {
+    let r = solve_text(
+        r#"
+[model]
+symmetry = "axisymmetric"
+[domain]
+rect = { min = [0, -100], max = [100, 100] }
+boundary = "open"
+mesh_size = 10
+[background]
+b = 1e-6
+direction = [0, 1]
+[[coil]]
+name = "c"
+turns = 1000
+wire = "awg30"
+fill_factor = 0.7
+rect = { min = [10, -5], max = [18, 5] }
+"#,
+    );
+    let fit = get(&r, "coils.c.turns_that_fit_enamelled");
+    assert!((850.0..910.0).contains(&fit), "{fit}");
+    let warned = r["warnings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|w| w.as_str().unwrap().contains("grade-2 enamel"));
+    assert!(warned, "{}", r["warnings"]);
+}
