@@ -1094,7 +1094,28 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             ));
         }
     }
-    let energy = (domain_energy(&field[0]) + domain_energy(&field[1])) * depth;
+    let energy = if newton.is_some() {
+        // ∫ (∫₀^B H dB) dV over the physical domain: the curve's energy density in
+        // nonlinear regions, ½ν|B|² elsewhere
+        let f = &field[0];
+        let mut w = 0.0;
+        for c in (0..disc.n_cells()).filter(|&c| !disc.is_image(c)) {
+            let curve = curves
+                .get(disc.cell_region[c] as usize)
+                .and_then(|k| k.as_ref());
+            f.quadrature(c, &fluxpick_solver::quadrature::DEGREE5, |v, dv| {
+                let b = v.b[0].hypot(v.b[1]);
+                w += dv
+                    * match curve {
+                        Some(k) => k.energy_density(b),
+                        None => 0.5 * f.nu_at(c, v.x) * b * b,
+                    };
+            });
+        }
+        w * depth
+    } else {
+        (domain_energy(&field[0]) + domain_energy(&field[1])) * depth
+    };
     let stats = mesh.stats();
     let physical_cells = (0..disc.n_cells()).filter(|&c| !disc.is_image(c)).count();
     let physical_nodes = {

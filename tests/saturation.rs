@@ -50,6 +50,13 @@ fn saturating_rod_collects_less_per_tesla_as_the_field_rises() {
         1e-3,
     );
     assert!(low["solve"]["newton_iterations"].as_u64().is_some());
+    // the stored energy from the curve's ∫H dB equals ½νB² at low field
+    assert_rel(
+        "stored energy at 1 µT",
+        get(&low, "energy_j"),
+        get(&lin, "energy_j"),
+        1e-3,
+    );
     let mut last = f64::INFINITY;
     for b in [1e-6, 2e-3, 8e-3, 3e-2] {
         let r = solve_text(&rod(b, CURVE));

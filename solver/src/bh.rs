@@ -110,6 +110,28 @@ impl BhCurve {
         0.5 * (lo + hi)
     }
 
+    /// Energy density ∫₀^b H dB (J/m³) at flux density `b` ≥ 0 (Simpson's rule on the
+    /// interpolated curve; exact along the μ0 extension).
+    pub fn energy_density(&self, b: f64) -> f64 {
+        let n = self.b.len();
+        let top = self.b[n - 1];
+        let simpson = |a: f64, c: f64| -> f64 {
+            let m = 64;
+            let h = (c - a) / m as f64;
+            let mut s = self.h_of_b(a).0 + self.h_of_b(c).0;
+            for k in 1..m {
+                let w = if k % 2 == 1 { 4.0 } else { 2.0 };
+                s += w * self.h_of_b(a + k as f64 * h).0;
+            }
+            s * h / 3.0
+        };
+        if b <= top {
+            return simpson(0.0, b);
+        }
+        let d = b - top;
+        simpson(0.0, top) + self.h[n - 1] * d + 0.5 * d * d / MU0
+    }
+
     /// Initial relative permeability (B/H at the origin), 1/(μ0 dH/dB).
     pub fn initial_mu_r(&self) -> f64 {
         1.0 / (MU0 * self.m[0])
@@ -204,6 +226,15 @@ mod tests {
                 // b_of_h inverts h_of_b
                 assert!((c.b_of_h(h) - b).abs() < 1e-9 * top);
             }
+            // the energy density of a straight-line start is ½ H B
+            let e = c.energy_density(0.5 * pts[1][1]);
+            let lin = 0.5 * c.h_of_b(0.5 * pts[1][1]).0 * 0.5 * pts[1][1];
+            assert!((e / lin - 1.0).abs() < 0.2, "energy {e} vs {lin}");
+            // and its derivative is H
+            let b0 = 0.7 * pts.last().unwrap()[1];
+            let de =
+                (c.energy_density(b0 * 1.0001) - c.energy_density(b0 * 0.9999)) / (0.0002 * b0);
+            assert!((de / c.h_of_b(b0).0 - 1.0).abs() < 1e-3, "dW/dB {de}");
             // beyond the last point the slope is μ0
             let (_, dh) = c.h_of_b(top);
             assert!((dh * MU0 - 1.0).abs() < 1e-12);
