@@ -455,83 +455,17 @@ const ENAMEL_PACKING: f64 = 0.78;
 /// Conductivity of annealed copper at 20 °C, 1/(1.7241e-8 Ω·m) (IEC 60028).
 const COPPER_CONDUCTIVITY_20C: f64 = 1.0 / wire::COPPER_RESISTIVITY_20C;
 
-pub fn run(case: &Case) -> Result<Run, StudyError> {
-    let omega = TAU * case.frequency;
-    let ac = case.frequency > 0.0;
-    let mut warnings = Vec::new();
-    for (name, m) in &case.materials {
-        let used = case.parts.iter().any(|p| &p.material == name)
-            || case.conductors.iter().any(|c| &c.material == name);
-        if used && m.bh.is_some() && case.frequency > 0.0 {
-            warnings.push(format!(
-                "material `{name}`: its B-H curve is used only at 0 Hz; at {} Hz this version solves with the linear μr {} (saturation is not modelled: compare peak |B| with the curve yourself)",
-                case.frequency, m.mu_r
-            ));
-        }
-    }
-    let model = Model::new(case)?;
-    let t0 = Instant::now();
-    let mesh = mesh_model(case, &model)?;
-    let mesh_s = t0.elapsed().as_secs_f64();
-    let materials = model.materials(case)?;
-    let windings = model.windings(case);
-    let bvec = case
-        .background
-        .as_ref()
-        .map(|b| [b.b * b.direction[0], b.b * b.direction[1]]);
-    let problem = Problem {
-        mesh: &mesh,
-        formulation: model.formulation,
-        order: model.order,
-        materials: materials.clone(),
-        windings: windings.clone(),
-        background: bvec,
-        dirichlet: model.dirichlet.clone(),
-    };
-    // Nonlinear regions (0 Hz only): the curve of each region's material.
-    let curves: Vec<Option<BhCurve>> = if case.frequency > 0.0 {
-        vec![]
-    } else {
-        model
-            .owners
-            .iter()
-            .map(|o| {
-                let mat = match o {
-                    Owner::Part(i) => Some(&case.parts[*i].material),
-                    Owner::Conductor(i) => Some(&case.conductors[*i].material),
-                    _ => None,
-                }?;
-                let pts = case.materials.get(mat)?.bh.as_ref()?;
-                Some(BhCurve::new(pts).map_err(|e| (mat.clone(), e)))
-            })
-            .map(|c| c.transpose())
-            .collect::<Result<_, _>>()
-            .map_err(|(m, e)| StudyError::Curve(m, e))?
-    };
-    let mut newton = None;
-    let solved = if has_eddy_currents(case) {
-        Solved::Harmonic(solve_harmonic(&problem, case.frequency)?)
-    } else if curves.iter().any(|c| c.is_some()) {
-        let currents: Vec<f64> = case
-            .coils
-            .iter()
-            .map(|c| c.current)
-            .chain(case.conductors.iter().map(|c| c.current))
-            .collect();
-        let nl = solve_nonlinear(&problem, &curves, &currents, NewtonOptions::default()).map_err(
-            |e| match e {
-                NonlinearError::Solve(s) => StudyError::Solve(s),
-                e => StudyError::Newton(e.to_string()),
-            },
-        )?;
-        newton = Some((nl.field, nl.report));
-        Solved::Static(nl.linear)
-    } else {
-        Solved::Static(solve_static(&problem)?)
-    };
-    let t0 = Instant::now();
-    // Unit solutions (each winding at 1 A rms, phase 0; the background at its b, phase 0).
-    let (disc, unit, background, densities, nk) = match &solved {
+type Units = (
+    Arc<Discretisation>,
+    Vec<Phasor>,
+    Option<Phasor>,
+    Vec<Vec<fluxpick_solver::statics::Density>>,
+    usize,
+);
+
+/// The unit solutions of a solve as phasors (imaginary parts zero when static).
+fn unit_phasors(solved: &Solved) -> Units {
+    match solved {
         Solved::Static(s) => (
             s.disc.clone(),
             s.unit
@@ -565,7 +499,161 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             h.densities.clone(),
             h.constraints.len(),
         ),
+    }
+}
+
+/// The total phasor field of the case's currents and background from unit solutions.
+fn total_phasor(
+    case: &Case,
+    unit: &[Phasor],
+    background: &Option<Phasor>,
+    like: &Field,
+    nk: usize,
+) -> Phasor {
+    let mut currents: Vec<C> = case
+        .coils
+        .iter()
+        .map(|c| C::from_polar(c.current, c.phase_deg.to_radians()))
+        .collect();
+    currents.extend(
+        case.conductors
+            .iter()
+            .map(|c| C::from_polar(c.current, c.phase_deg.to_radians())),
+    );
+    let mut parts: Vec<(C, &Phasor)> = currents.iter().copied().zip(unit.iter()).collect();
+    if let (Some(b), Some(bg)) = (&case.background, background) {
+        parts.push((C::from_polar(1.0, b.phase_deg.to_radians()), bg));
+    }
+    combine(&parts, like, nk)
+}
+
+pub fn run(case: &Case) -> Result<Run, StudyError> {
+    let omega = TAU * case.frequency;
+    let ac = case.frequency > 0.0;
+    let mut warnings = Vec::new();
+    let model = Model::new(case)?;
+    let t0 = Instant::now();
+    let mesh = mesh_model(case, &model)?;
+    let mesh_s = t0.elapsed().as_secs_f64();
+    let materials = model.materials(case)?;
+    let windings = model.windings(case);
+    let bvec = case
+        .background
+        .as_ref()
+        .map(|b| [b.b * b.direction[0], b.b * b.direction[1]]);
+    let mut problem = Problem {
+        mesh: &mesh,
+        formulation: model.formulation,
+        order: model.order,
+        materials: materials.clone(),
+        windings: windings.clone(),
+        background: bvec,
+        dirichlet: model.dirichlet.clone(),
     };
+    // Nonlinear regions: the curve of each region's material.
+    let curves: Vec<Option<BhCurve>> = {
+        model
+            .owners
+            .iter()
+            .map(|o| {
+                let mat = match o {
+                    Owner::Part(i) => Some(&case.parts[*i].material),
+                    Owner::Conductor(i) => Some(&case.conductors[*i].material),
+                    _ => None,
+                }?;
+                let pts = case.materials.get(mat)?.bh.as_ref()?;
+                Some(BhCurve::new(pts).map_err(|e| (mat.clone(), e)))
+            })
+            .map(|c| c.transpose())
+            .collect::<Result<_, _>>()
+            .map_err(|(m, e)| StudyError::Curve(m, e))?
+    };
+    let mut newton = None;
+    if ac && curves.iter().any(|c| c.is_some()) {
+        // At f > 0: an effective (energy-equivalent) reluctivity per saturating region, from
+        // the region's mean flux density, iterated to a fixed point.
+        let mut mats = problem.materials.clone();
+        let mut brackets = vec![(0.0f64, f64::INFINITY); mats.len()];
+        let mut converged = false;
+        let mut iterations = 0;
+        for _ in 0..60 {
+            iterations += 1;
+            let p = Problem {
+                materials: mats.clone(),
+                ..problem.clone()
+            };
+            let s = if has_eddy_currents(case) {
+                Solved::Harmonic(solve_harmonic(&p, case.frequency)?)
+            } else {
+                Solved::Static(solve_static(&p)?)
+            };
+            let (_, u, bg, _, k) = unit_phasors(&s);
+            let like = match (u.first(), &bg) {
+                (Some(x), _) => x.f[0].clone(),
+                (None, Some(b)) => b.f[0].clone(),
+                (None, None) => return Err(StudyError::Solve(SolveError::NoUnknowns)),
+            };
+            let tot = total_phasor(case, &u, &bg, &like, k);
+            // per region, a bracket [lo, hi] on ν closed by bisection in log ν (the plain
+            // fixed-point iteration oscillates once the core saturates)
+            let mut change: f64 = 0.0;
+            for (r, c) in curves.iter().enumerate() {
+                let Some(c) = c else { continue };
+                let b_mean = region_flux(&[&tot.f[0], &tot.f[1]], &[r as u32]).b_mean;
+                let target = c.effective_nu(std::f64::consts::SQRT_2 * b_mean);
+                let nu = mats[r].nu;
+                let (lo, hi) = &mut brackets[r];
+                if target > nu {
+                    *lo = nu;
+                } else {
+                    *hi = nu;
+                }
+                let new = if lo.is_finite() && hi.is_finite() && *lo > 0.0 {
+                    (*lo * *hi).sqrt()
+                } else {
+                    target
+                };
+                change = change
+                    .max((new / nu - 1.0).abs())
+                    .max((target / nu - 1.0).abs());
+                mats[r].nu = new;
+            }
+            if change < 1e-5 {
+                converged = true;
+                break;
+            }
+        }
+        warnings.push(format!(
+            "saturating materials at {} Hz: an effective permeability per region from the energy-equivalent reluctivity at its mean flux density ({} iterations{}); an approximation: harmonics and saturation within a region are not modelled",
+            case.frequency,
+            iterations,
+            if converged { "" } else { ", NOT converged" }
+        ));
+        problem.materials = mats;
+    }
+    let solved = if has_eddy_currents(case) {
+        Solved::Harmonic(solve_harmonic(&problem, case.frequency)?)
+    } else if !ac && curves.iter().any(|c| c.is_some()) {
+        let currents: Vec<f64> = case
+            .coils
+            .iter()
+            .map(|c| c.current)
+            .chain(case.conductors.iter().map(|c| c.current))
+            .collect();
+        let nl = solve_nonlinear(&problem, &curves, &currents, NewtonOptions::default()).map_err(
+            |e| match e {
+                NonlinearError::Solve(s) => StudyError::Solve(s),
+                e => StudyError::Newton(e.to_string()),
+            },
+        )?;
+        newton = Some((nl.field, nl.report));
+        Solved::Static(nl.linear)
+    } else {
+        Solved::Static(solve_static(&problem)?)
+    };
+    let t0 = Instant::now();
+    // Unit solutions (each winding at 1 A rms, phase 0; the background at its b, phase 0).
+    let (disc, unit, background, densities, nk) = unit_phasors(&solved);
     let like = match (&unit.first(), &background) {
         (Some(u), _) => u.f[0].clone(),
         (None, Some(b)) => b.f[0].clone(),
@@ -582,11 +670,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             .iter()
             .map(|c| C::from_polar(c.current, c.phase_deg.to_radians())),
     );
-    let mut parts_list: Vec<(C, &Phasor)> = currents.iter().copied().zip(unit.iter()).collect();
-    if let (Some(b), Some(bg)) = (&case.background, &background) {
-        parts_list.push((C::from_polar(1.0, b.phase_deg.to_radians()), bg));
-    }
-    let mut total = combine(&parts_list, &like, nk);
+    let mut total = total_phasor(case, &unit, &background, &like, nk);
     if let Some((f, _)) = &newton {
         // the Newton solve's field replaces the superposition (which does not hold)
         total = Phasor {
