@@ -346,6 +346,15 @@ fn finish_sweep(
         out.display(),
         plots.len()
     );
+    for c in crate::sweep::saturation_crossings(rec) {
+        println!(
+            "{} reaches {:.0} % at {} = {:.4}",
+            c.figure,
+            100.0 * c.level,
+            c.parameter,
+            c.value
+        );
+    }
     for p in &failed {
         eprintln!(
             "point {} ({:?}) failed: {}",

@@ -44,6 +44,69 @@ pub struct SweepRecord {
     pub points: Vec<PointResult>,
 }
 
+/// Where a figure first reaches a level along a one-parameter sweep (linear interpolation
+/// between neighbouring points), e.g. the source current at which a core's peak flux
+/// density reaches 80 % of its saturation.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Crossing {
+    pub figure: String,
+    pub level: f64,
+    pub parameter: String,
+    pub value: f64,
+}
+
+/// Saturation crossings of a sweep over one parameter (or one group, by its first
+/// parameter): for every part with a saturation flux density, where its peak and its mean
+/// |B| reach 80 % and 100 % of it.
+pub fn saturation_crossings(rec: &SweepRecord) -> Vec<Crossing> {
+    let Some(x) = rec.parameters.first() else {
+        return vec![];
+    };
+    let mut pts: Vec<(f64, &BTreeMap<String, f64>)> = rec
+        .points
+        .iter()
+        .filter_map(|p| Some((*p.parameters.get(x)?, p.figures.as_ref()?)))
+        .collect();
+    // one axis only: every point differs in x
+    let mut xs: Vec<f64> = pts.iter().map(|p| p.0).collect();
+    xs.sort_by(f64::total_cmp);
+    xs.dedup();
+    if xs.len() != pts.len() || pts.len() < 2 {
+        return vec![];
+    }
+    pts.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut out = Vec::new();
+    let parts: Vec<String> = pts[0]
+        .1
+        .keys()
+        .filter_map(|k| k.strip_suffix(".b_sat_t").map(str::to_string))
+        .collect();
+    for part in parts {
+        let sat = pts[0].1[&format!("{part}.b_sat_t")];
+        for (fig, key) in [("b_peak", ".b_peak_t"), ("b_mean", ".b_mean_t")] {
+            let series: Vec<(f64, f64)> = pts
+                .iter()
+                .filter_map(|(xv, f)| Some((*xv, f.get(&format!("{part}{key}"))? / sat)))
+                .collect();
+            for level in [0.8, 1.0] {
+                if let Some(w) = series
+                    .windows(2)
+                    .find(|w| w[0].1 < level && w[1].1 >= level)
+                {
+                    let t = (level - w[0].1) / (w[1].1 - w[0].1);
+                    out.push(Crossing {
+                        figure: format!("{part}.{fig}_over_sat"),
+                        level,
+                        parameter: x.clone(),
+                        value: w[0].0 + t * (w[1].0 - w[0].0),
+                    });
+                }
+            }
+        }
+    }
+    out
+}
+
 /// The axes of the grid: each a list of (parameter, values) moving together.
 fn axes(case: &Case) -> Vec<Vec<(String, Vec<f64>)>> {
     let mut out: Vec<Vec<(String, Vec<f64>)>> = Vec::new();
@@ -421,6 +484,12 @@ pub fn write_outputs(
     let json = serde_json::to_string_pretty(rec).map_err(|e| e.to_string())?;
     atomic_write(&dir.join("sweep.json"), format!("{json}\n").as_bytes())
         .map_err(|e| e.to_string())?;
+    let crossings = saturation_crossings(rec);
+    if !crossings.is_empty() {
+        let text = serde_json::to_string_pretty(&crossings).map_err(|e| e.to_string())?;
+        atomic_write(&dir.join("crossings.json"), format!("{text}\n").as_bytes())
+            .map_err(|e| e.to_string())?;
+    }
     let mut written = Vec::new();
     for key in plot_keys {
         for x in &rec.parameters {

@@ -124,3 +124,73 @@ fn effective_permeability_at_50_hz() {
         "{w:?}"
     );
 }
+
+/// A sweep of the source current finds the current at which the core's peak |B| reaches
+/// 80 % of its saturation; solving at that current gives 80 % back (within the linear
+/// interpolation between sweep points).
+#[test]
+fn current_sweep_finds_where_the_core_nears_saturation() {
+    let text = r#"
+[model]
+title = "driven core"
+symmetry = "axisymmetric"
+[parameters]
+I = 0.1
+[domain]
+rect = { min = [0, -200], max = [200, 200] }
+boundary = "open"
+mesh_size = 25
+[materials.ferrite]
+mu_r = 2000
+b_sat = 0.45
+bh_curve = "mnzn-ferrite"
+[[part]]
+name = "core"
+material = "ferrite"
+rect = { min = [0, -60], max = [10, 60] }
+mesh_size = 2
+[[coil]]
+name = "drive"
+turns = 500
+wire = "awg28"
+current = "I"
+rect = { min = [11, -50], max = [15, 50] }
+mesh_size = 2
+[[sweep]]
+parameter = "I"
+from = 1
+to = 4
+steps = 13
+"#;
+    let (dir, case) = write_case("core.toml", text);
+    let out = dir.path().join("sw");
+    let o = fluxpick(&[
+        "sweep",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        stdout.contains("parts.core.b_peak_over_sat reaches 80 %"),
+        "{stdout}"
+    );
+    let c: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("crossings.json")).unwrap())
+            .unwrap();
+    let hit = c
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|x| x["figure"] == "parts.core.b_peak_over_sat" && x["level"] == 0.8)
+        .expect("80 % crossing");
+    let i80 = hit["value"].as_f64().unwrap();
+    let r = solve_text(&text.replace("I = 0.1", &format!("I = {i80}")));
+    let ratio = get(&r, "parts.core.b_peak_t") / 0.45;
+    eprintln!(
+        "80 % of saturation at I = {i80:.4} A; solved there: {:.3}",
+        ratio
+    );
+    assert!((ratio - 0.8).abs() < 0.05, "{ratio}");
+}
