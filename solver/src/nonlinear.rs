@@ -22,7 +22,7 @@ use crate::field::Field;
 use crate::linsolve::CholeskyAnalysis;
 use crate::problem::Problem;
 use crate::quadrature::DEGREE5;
-use crate::statics::{background_potential, solve_static, Density, StaticSolution};
+use crate::statics::{background_potential, solve_static, Density, SourceFn, StaticSolution};
 use crate::{SolveError, MU0};
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -217,9 +217,21 @@ pub fn solve_nonlinear(
     currents: &[f64],
     opts: NewtonOptions,
 ) -> Result<NonlinearSolution, NonlinearError> {
+    solve_nonlinear_with(p, curves, currents, &[], opts)
+}
+
+/// As [`solve_nonlinear`], with distributed current densities `sources` (A/m² as functions
+/// of position) added to the windings' (for manufactured-solution tests).
+pub fn solve_nonlinear_with(
+    p: &Problem,
+    curves: &[Option<BhCurve>],
+    currents: &[f64],
+    sources: &[SourceFn],
+    opts: NewtonOptions,
+) -> Result<NonlinearSolution, NonlinearError> {
     match p.order {
-        Order::Linear => solve_with::<3, P1>(p, curves, currents, opts),
-        Order::Quadratic => solve_with::<6, P2>(p, curves, currents, opts),
+        Order::Linear => solve_with::<3, P1>(p, curves, currents, sources, opts),
+        Order::Quadratic => solve_with::<6, P2>(p, curves, currents, sources, opts),
     }
 }
 
@@ -227,6 +239,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     p: &Problem,
     curves: &[Option<BhCurve>],
     currents: &[f64],
+    sources: &[SourceFn],
     opts: NewtonOptions,
 ) -> Result<NonlinearSolution, NonlinearError> {
     // The linear solve gives the discretisation, the densities and the starting point.
@@ -244,7 +257,21 @@ fn solve_with<const N: usize, B: Basis<N>>(
             *v = background_potential(d.formulation, b, d.points[n]);
         }
     }
-    let f = source_vector::<N, B>(&d, &linear.densities, currents);
+    let mut f = source_vector::<N, B>(&d, &linear.densities, currents);
+    for src in sources {
+        for c in 0..d.n_cells() {
+            let g = Geometry::new(d.vertices(c));
+            let mut v = [0.0; N];
+            for q in &crate::quadrature::DEGREE6 {
+                let pb = point_basis::<N, B>(&g, q.l, d.formulation);
+                let dw = q.w * g.area * pb.weight * src(pb.x);
+                for i in 0..N {
+                    v[i] += dw * pb.n[i];
+                }
+            }
+            scatter_vector(&d, c, &v, &mut f);
+        }
+    }
     let pattern = Pattern::new(&d);
     let sys = System::<N> {
         d: &d,

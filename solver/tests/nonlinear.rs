@@ -4,7 +4,7 @@
 //! whatever the material, so the flux per metre through the wall is ∫ B(I/(2πr)) dr over
 //! the wall, with B(H) from the same curve (computed here by Simpson's rule).
 
-use std::f64::consts::TAU;
+use std::f64::consts::{PI, TAU};
 
 use fluxpick_mesh::{generate, Cuts, MeshParams, MeshSpec, Outer, RegionInput, Shape, Side};
 use fluxpick_solver::bh::{typical, BhCurve};
@@ -195,4 +195,109 @@ fn low_field_result_equals_the_linear_one() {
         let b = current * lin.unit[0].at([r, 0.0]).unwrap().a;
         assert!((a / b - 1.0).abs() < 1e-3, "r {r}: {a} vs linear {b}");
     }
+}
+
+/// Manufactured solution with a nonlinear ν (method of manufactured solutions, e.g. Roache
+/// 1998): A = a0 sin(πx) sin(πy) on the unit square (A = 0 on its sides) with |B| up to
+/// 1.8 T in mild steel (the typical curve), J = −∇·(ν(|∇A|²) ∇A) computed from the exact A
+/// (central differences of the exact flux vector). Second-order elements on four meshes:
+/// the fitted order of the L2 error of B is within ±0.15 of 2, the energy-norm rate that
+/// Galerkin approximations of strongly monotone problems share with linear ones. The L2
+/// error of A converges faster, but below the linear problem's 3 (measured 2.79): the
+/// interpolated curve is only C¹ (its ν' jumps in slope at the curve's points), which
+/// limits both the duality gain and the quadrature of the kinked source; asserted above 2.6.
+#[test]
+fn nonlinear_manufactured_solution_converges_at_the_expected_orders() {
+    use fluxpick_solver::nonlinear::solve_nonlinear_with;
+    use fluxpick_solver::quadrature::DEGREE6;
+    let curve = BhCurve::new(&typical::MILD_STEEL).unwrap();
+    let a0 = 1.8 / PI;
+    let grad = |x: [f64; 2]| {
+        [
+            a0 * PI * (PI * x[0]).cos() * (PI * x[1]).sin(),
+            a0 * PI * (PI * x[0]).sin() * (PI * x[1]).cos(),
+        ]
+    };
+    let flux = |x: [f64; 2]| {
+        let g = grad(x);
+        let (nu, _) = curve.nu(g[0] * g[0] + g[1] * g[1]);
+        [nu * g[0], nu * g[1]]
+    };
+    let source = |x: [f64; 2]| {
+        let e = 1e-6;
+        let dfx = (flux([x[0] + e, x[1]])[0] - flux([x[0] - e, x[1]])[0]) / (2.0 * e);
+        let dfy = (flux([x[0], x[1] + e])[1] - flux([x[0], x[1] - e])[1]) / (2.0 * e);
+        -(dfx + dfy)
+    };
+    let mut rows = Vec::new();
+    for h in [0.2, 0.1, 0.05, 0.025] {
+        let spec = MeshSpec {
+            outer: Outer::Rect {
+                min: [0.0, 0.0],
+                max: [1.0, 1.0],
+            },
+            background_max_edge: h,
+            regions: vec![],
+            clip_at_axis: false,
+            exterior_image: false,
+            params: MeshParams::default(),
+        };
+        let mesh = generate(&spec).unwrap();
+        let p = Problem {
+            mesh: &mesh,
+            formulation: Formulation::Planar,
+            order: Order::Quadratic,
+            materials: vec![RegionMaterial::from_mu_r(curve.initial_mu_r(), 0.0)],
+            windings: vec![],
+            background: None,
+            dirichlet: vec![Side::Left, Side::Right, Side::Bottom, Side::Top],
+        };
+        let sol = solve_nonlinear_with(
+            &p,
+            &[Some(curve.clone())],
+            &[],
+            &[&source],
+            NewtonOptions::default(),
+        )
+        .unwrap();
+        let f = &sol.field;
+        let (mut ea, mut eb) = (0.0, 0.0);
+        for c in 0..f.disc.n_cells() {
+            f.quadrature(c, &DEGREE6, |v, dv| {
+                let x = v.x;
+                let a = a0 * (PI * x[0]).sin() * (PI * x[1]).sin();
+                let g = grad(x);
+                let b = [g[1], -g[0]];
+                ea += (v.a - a).powi(2) * dv;
+                eb += ((v.b[0] - b[0]).powi(2) + (v.b[1] - b[1]).powi(2)) * dv;
+            });
+        }
+        let size = (1.0 / f.disc.n_cells() as f64).sqrt();
+        eprintln!(
+            "h {h}: {} cells, L2 error A {:.3e}, B {:.3e}, {} Newton iterations",
+            f.disc.n_cells(),
+            ea.sqrt(),
+            eb.sqrt(),
+            sol.report.iterations
+        );
+        rows.push((size.ln(), ea.sqrt().ln(), eb.sqrt().ln()));
+    }
+    let fit = |k: usize| {
+        let n = rows.len() as f64;
+        let (sx, sy): (f64, f64) = rows.iter().fold((0.0, 0.0), |a, r| {
+            (a.0 + r.0, a.1 + if k == 0 { r.1 } else { r.2 })
+        });
+        let (mx, my) = (sx / n, sy / n);
+        let (mut num, mut den) = (0.0, 0.0);
+        for r in &rows {
+            let y = if k == 0 { r.1 } else { r.2 };
+            num += (r.0 - mx) * (y - my);
+            den += (r.0 - mx).powi(2);
+        }
+        num / den
+    };
+    let (oa, ob) = (fit(0), fit(1));
+    eprintln!("fitted orders: A {oa:.2}, B {ob:.2}");
+    assert!((2.6..=3.15).contains(&oa), "order of A {oa}");
+    assert!((ob - 2.0).abs() <= 0.15, "order of B {ob}");
 }
