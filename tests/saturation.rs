@@ -194,3 +194,36 @@ steps = 13
     );
     assert!((ratio - 0.8).abs() < 0.05, "{ratio}");
 }
+
+/// A B-H curve read from a CSV file beside the case gives the same answer as the same
+/// points written inline.
+#[test]
+fn bh_curve_from_a_csv_file() {
+    let inline = solve_text(&rod(2e-2, CURVE));
+    let (dir, case) = write_case(
+        "rod.toml",
+        &rod(
+            2e-2,
+            "[materials.ferrite]\nmu_r = 1989.4368\nbh_file = \"ferrite.csv\"\n",
+        ),
+    );
+    std::fs::write(
+        dir.path().join("ferrite.csv"),
+        "H_A_per_m,B_T\n0,0\n10,0.025\n25,0.06\n50,0.11\n100,0.19\n200,0.3\n500,0.42\n2000,0.48\n8000,0.5\n",
+    )
+    .unwrap();
+    let from_file = solve(&case, &dir.path().join("out"));
+    assert_eq!(
+        get(&from_file, "coils.pickup.equivalent_area_m2"),
+        get(&inline, "coils.pickup.equivalent_area_m2")
+    );
+    // a missing file is a case error naming the key
+    std::fs::remove_file(dir.path().join("ferrite.csv")).unwrap();
+    let o = fluxpick(&["check", case.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("materials.ferrite.bh_file") && err.contains("ferrite.csv"),
+        "{err}"
+    );
+}

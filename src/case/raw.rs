@@ -298,6 +298,10 @@ pub struct RawMaterial {
     /// "electrical-steel" or "mnzn-ferrite".
     #[serde(default)]
     pub bh_curve: Option<Spanned<String>>,
+    /// A B-H curve from a CSV file (two columns H A/m, B T; an optional header line), the
+    /// path relative to the case file.
+    #[serde(default)]
+    pub bh_file: Option<Spanned<String>>,
     /// Optional saturation flux density in T, for reporting core use against it.
     #[serde(default)]
     pub b_sat: Option<SNum>,

@@ -3,6 +3,7 @@
 
 use std::collections::BTreeMap;
 use std::ops::Range;
+use std::path::Path;
 
 use fluxpick_postproc::wire;
 use toml::Spanned;
@@ -1017,7 +1018,23 @@ pub(super) fn resolve(
             .as_ref()
             .map(|v| cx.positive(v, &format!("{k}.density"), "the density"))
             .transpose()?;
+        let from_file = match &mv.bh_file {
+            None => None,
+            Some(f) => {
+                if mv.bh.is_some() || mv.bh_curve.is_some() {
+                    return Err(cx.err(
+                        K::ShapeKeys,
+                        sp(f),
+                        &format!("{k}.bh_file"),
+                        "give one of `bh`, `bh_curve` and `bh_file`",
+                        "remove the others",
+                    ));
+                }
+                Some(read_bh_file(&cx, f, &format!("{k}.bh_file"))?)
+            }
+        };
         let bh = match (&mv.bh, &mv.bh_curve) {
+            _ if from_file.is_some() => from_file,
             (Some(_), Some(named)) => {
                 return Err(cx.err(
                     K::ShapeKeys,
@@ -1522,6 +1539,69 @@ fn resolve_domain(cx: &Ctx<'_>, raw: &RawCase) -> Result<Domain> {
         mesh_size,
         edges,
     })
+}
+
+/// Reads a two-column CSV B-H curve (H A/m, B T), relative to the case file, and checks it
+/// like `bh`.
+fn read_bh_file(cx: &Ctx<'_>, f: &Spanned<String>, key: &str) -> Result<Vec<[f64; 2]>> {
+    let base = Path::new(&cx.src.name)
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    let path = base.join(f.get_ref());
+    let text = std::fs::read_to_string(&path).map_err(|e| {
+        cx.err(
+            K::Io,
+            sp(f),
+            key,
+            format!("cannot read the B-H file {}: {e}", path.display()),
+            "give the path relative to the case file",
+        )
+    })?;
+    let mut pts: Vec<[f64; 2]> = Vec::new();
+    for (n, line) in text.lines().enumerate() {
+        let line = line.trim();
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let cols: Vec<&str> = line.split([',', ';', '\t']).map(str::trim).collect();
+        let nums: Option<Vec<f64>> = cols.iter().take(2).map(|c| c.parse().ok()).collect();
+        match nums {
+            Some(v) if v.len() == 2 && v.iter().all(|x| x.is_finite()) => pts.push([v[0], v[1]]),
+            _ if pts.is_empty() && n == 0 => continue, // a header line
+            _ => {
+                return Err(cx.err(
+                    K::WrongType,
+                    sp(f),
+                    key,
+                    format!(
+                        "{} line {}: expected two numbers, H (A/m) and B (T)",
+                        path.display(),
+                        n + 1
+                    ),
+                    "write one point per line as H,B",
+                ))
+            }
+        }
+    }
+    let ok = pts.len() >= 3
+        && pts[0] == [0.0, 0.0]
+        && pts
+            .windows(2)
+            .all(|w| w[1][0] > w[0][0] && w[1][1] > w[0][1]);
+    if !ok {
+        return Err(cx.err(
+            K::OutOfRange,
+            sp(f),
+            key,
+            format!(
+                "the B-H curve in {} must start at 0,0 and have at least 3 points with H and B strictly increasing",
+                path.display()
+            ),
+            "fix the file",
+        ));
+    }
+    Ok(pts)
 }
 
 fn resolve_bh(cx: &Ctx<'_>, curve: &Spanned<Vec<Pt>>, key: &str) -> Result<Vec<[f64; 2]>> {
