@@ -752,7 +752,10 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         let b_sat = case.materials.get(&p.material).and_then(|m| m.b_sat);
         let mu_app = match (&case.background, &background) {
             (Some(b), Some(bg)) if b.b != 0.0 => {
-                apparent_permeability(bg, &regions, &p.shape, b.direction, axi).map(|m| m / b.b)
+                // with saturation the Newton field at the case's own field (superposition
+                // does not hold); otherwise the applied field's solution alone
+                let f = if newton.is_some() { &total } else { bg };
+                apparent_permeability(f, &regions, &p.shape, b.direction, axi).map(|m| m / b.b)
             }
             _ => None,
         };
