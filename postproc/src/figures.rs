@@ -3,7 +3,7 @@
 use fluxpick_solver::element::Geometry;
 use fluxpick_solver::quadrature::DEGREE6;
 use fluxpick_solver::statics::Density;
-use fluxpick_solver::{Field, StaticSolution};
+use fluxpick_solver::Field;
 
 /// Mean and peak |B| over a set of regions.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
@@ -80,31 +80,6 @@ pub fn flux_linkage(f: &Field, density: &[Density]) -> f64 {
         .collect::<Vec<f64>>()
         .iter()
         .sum()
-}
-
-/// Inductance matrix of all windings by two independent routes (H; per metre of depth in
-/// planar form): `flux[i][k]` = flux linkage of winding i with 1 A in winding k;
-/// `energy[i][k]` = ∫ ν B_i·B_k dV over the whole model including the exterior image
-/// (for i = k, 2W/I²).
-pub struct Inductances {
-    pub flux: Vec<Vec<f64>>,
-    pub energy: Vec<Vec<f64>>,
-}
-
-pub fn inductances(sol: &StaticSolution) -> Inductances {
-    let n = sol.unit.len();
-    let mut flux = vec![vec![0.0; n]; n];
-    let mut energy = vec![vec![0.0; n]; n];
-    for i in 0..n {
-        for k in 0..n {
-            flux[i][k] = flux_linkage(&sol.unit[k], &sol.densities[i]);
-            if k >= i {
-                energy[i][k] = sol.unit[i].coenergy_with(&sol.unit[k], |_| true);
-                energy[k][i] = energy[i][k];
-            }
-        }
-    }
-    Inductances { flux, energy }
 }
 
 /// Magnetic energy in the physical domain (not the exterior image), J (per metre in planar).

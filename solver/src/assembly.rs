@@ -15,7 +15,7 @@ pub struct Pattern {
     pub col_ptr: Vec<usize>,
     pub row_idx: Vec<usize>,
     /// For cell c, local entry (i, j) at `positions[c * k² + i * k + j]` with k the local
-    /// size (nodes per cell, plus one with extra unknowns), or `u32::MAX` when node i or j is
+    /// size (nodes per cell), or `u32::MAX` when node i or j is
     /// fixed. (u32 is enough below 4·10⁹ nonzeros.)
     positions: Vec<u32>,
     /// Local size k.
@@ -25,27 +25,14 @@ pub struct Pattern {
 impl Pattern {
     /// The pattern of the node unknowns.
     pub fn new(d: &Discretisation) -> Self {
-        Self::with_extras(d, &[], 0)
-    }
-
-    /// The pattern with `n_extra` further unknowns numbered after the node unknowns, each
-    /// coupled to every node of the cells that name it: `extra[c]` is the extra unknown of
-    /// cell c or [`FIXED`] (e.g. the voltage of a solid conductor). Empty `extra`: none.
-    pub fn with_extras(d: &Discretisation, extra: &[u32], n_extra: usize) -> Self {
-        let npe = d.npe();
-        let local = if extra.is_empty() { npe } else { npe + 1 };
-        let n = d.n_dofs + n_extra;
+        let local = d.npe();
+        let n = d.n_dofs;
         let nc = d.n_cells();
         let cell_dofs = |c: usize| -> Vec<u32> {
-            let mut v: Vec<u32> = d
-                .cell(c)
+            d.cell(c)
                 .iter()
                 .map(|&node| d.node_dof[node as usize])
-                .collect();
-            if !extra.is_empty() {
-                v.push(extra[c]);
-            }
-            v
+                .collect()
         };
         // dof -> cells incidence by counting sort
         let mut count = vec![0usize; n + 1];

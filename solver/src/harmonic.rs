@@ -95,35 +95,6 @@ impl HarmonicSolution {
         (c64::new(0.0, -self.omega() * sigma) * v, a.weight, a.x)
     }
 
-    /// Σ c_i (field_i, ψ_i): a phasor combination of unit solutions (complex coefficients).
-    pub fn combine(&self, parts: &[(c64, &[Field; 2], &[c64])]) -> ([Field; 2], Vec<c64>) {
-        let mut re: Vec<(f64, &Field)> = Vec::new();
-        let mut im: Vec<(f64, &Field)> = Vec::new();
-        let mut psi = vec![c64::new(0.0, 0.0); self.constraints.len()];
-        for (k, f, p) in parts {
-            re.push((k.re, &f[0]));
-            re.push((-k.im, &f[1]));
-            im.push((k.im, &f[0]));
-            im.push((k.re, &f[1]));
-            for (a, b) in psi.iter_mut().zip(p.iter()) {
-                *a += *k * *b;
-            }
-        }
-        let zero = || Field {
-            disc: self.disc.clone(),
-            locator: self.locator.clone(),
-            nu: self.nu.clone(),
-            a: vec![0.0; self.disc.points.len()],
-        };
-        (
-            [
-                Field::combine(&re).unwrap_or_else(zero),
-                Field::combine(&im).unwrap_or_else(zero),
-            ],
-            psi,
-        )
-    }
-
     /// Time-average induced (and, in solid conductors, total) loss ∫|J|²/σ dV per region id:
     /// W per metre of depth (planar) or W (axisymmetric).
     pub fn region_losses(&self, field: &[Field; 2], psi: &[c64]) -> Vec<f64> {

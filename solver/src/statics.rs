@@ -59,25 +59,6 @@ pub struct StaticSolution {
     pub max_residual: f64,
 }
 
-impl StaticSolution {
-    /// The total field for the given winding currents (A), plus the background.
-    pub fn total(&self, currents: &[f64]) -> Field {
-        let mut parts: Vec<(f64, &Field)> = Vec::new();
-        if let Some(b) = &self.background {
-            parts.push((1.0, b));
-        }
-        for (i, f) in currents.iter().zip(&self.unit) {
-            parts.push((*i, f));
-        }
-        Field::combine(&parts).unwrap_or_else(|| Field {
-            disc: self.disc.clone(),
-            locator: self.locator.clone(),
-            nu: self.nu.clone(),
-            a: vec![0.0; self.disc.points.len()],
-        })
-    }
-}
-
 /// The applied potential at a point (planar B0 × position, axisymmetric B0 r / 2).
 pub fn background_potential(formulation: Formulation, b: [f64; 2], x: [f64; 2]) -> f64 {
     match formulation {
