@@ -1,6 +1,9 @@
 //! Saturating cores through the binary: a ferrite rod with a B-H curve in a rising uniform
 //! field collects less per tesla as it saturates, and matches the linear result at low
-//! field (the curve's initial permeability).
+//! field (the curve's initial permeability). A core's pickup per tesla falling once it
+//! saturates is common practice, no source; the low-field and file checks are consistency
+//! checks of our own (the same physics by two routes). The B-H points are invented, shaped
+//! like a ferrite's.
 
 mod common;
 use common::*;

@@ -102,7 +102,8 @@ fn sweep_is_identical_on_one_or_two_threads_and_in_merged_shards() {
             && svg.contains("coils.pickup.emf_v (V)")
             && svg.contains("L (case units)")
     );
-    // and the longer rod collects more: EMF rises with L at each D
+    // and the longer rod collects more: EMF rises with L at each D (demagnetisation falls
+    // with length; common practice, no source)
     for k in 0..2 {
         let e: Vec<f64> = (0..3)
             .map(|i| {
