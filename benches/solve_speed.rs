@@ -1,13 +1,23 @@
-//! Solve-speed benchmark: planar and axisymmetric static cases at about 200k (`small`)
-//! and 1M (`large`) unknowns; prints seconds per stage (mesh, assemble, factor, solve, post), unknowns per
-//! second end to end, and the figure's error against its analytic reference.
+//! Solve-speed benchmark: the standard cases at about 50k, 200k and 1M unknowns (and 2M
+//! with `2m`), each solved in a child process of its own so that its peak memory is its
+//! own:
 //!
-//! Then a planar eddy-current case (three bars beside a steel wall) at about 200k unknowns
-//! end to end, and a 10-point frequency sweep that keeps the symbolic analysis
-//! (`HarmonicPlan`) against fresh solves.
+//! * `planar`: a round wire in open air (Ampère: B = μ0 I/(2πr) at r = 100 mm);
+//! * `axi`: a prolate spheroid of aspect 5, μr 1000, in a uniform axial field (Osborn
+//!   1945: B_in/B0 = 17.6164);
+//! * `eddy`: a solid aluminium wire, r = 20 mm, 1000 A at 60 Hz (R_ac/R_dc from the Bessel
+//!   solution, Ramo, Whinnery & Van Duzer §5.13).
 //!
-//! `cargo bench --bench solve_speed` (all) or `cargo bench --bench solve_speed -- small`
-//! (also `large`, `eddy`, `sweep`: a 50-point axisymmetric sweep, points per second).
+//! Each row: seconds for mesh, assemble, factor, solve, post-process and write (results.json
+//! and field.vtu), the total, unknowns per second end to end, peak resident memory and the
+//! figure's relative error against its reference. Then the fitted exponents of time and
+//! memory against unknowns per case (the scaling table of README's performance section).
+//!
+//! Also `wall` (three bars beside a steel wall at 50 Hz, ~256k unknowns, and a frequency
+//! sweep with the symbolic analysis kept) and `sweep` (a 50-point axisymmetric sweep).
+//!
+//! `cargo bench --bench solve_speed` (all but 2m), or with filters:
+//! `cargo bench --bench solve_speed -- 200k eddy` (rows whose name contains every word).
 
 use std::time::Instant;
 
@@ -63,14 +73,115 @@ mesh_size = {h_core}
     )
 }
 
-fn bench(name: &str, text: &str, figure: &str, reference: f64) {
+/// Solid aluminium wire, r = 20 mm, σ = 3.5e7 S/m, 1000 A rms at 60 Hz (δ = 10.98 mm).
+fn wire60(h_air: f64, h_wire: f64) -> String {
+    format!(
+        r#"
+[model]
+title = "bench 60 Hz wire"
+symmetry = "planar"
+frequency = 60
+[domain]
+circle = {{ center = [0, 0], radius = 250 }}
+boundary = "open"
+mesh_size = {h_air}
+[materials.alu]
+conductivity = 3.5e7
+[[conductor]]
+name = "wire"
+material = "alu"
+circle = {{ center = [0, 0], radius = 20 }}
+current = 1000
+kind = "solid"
+mesh_size = {h_wire}
+skin_mesh_size = {h_wire}
+"#
+    )
+}
+
+/// R_ac/R_dc of a round wire: Re[(ka/2) J0(ka)/J1(ka)] with k = (1 − j)/δ (e^{jωt}
+/// phasors; Ramo, Whinnery & Van Duzer, "Fields and Waves in Communication Electronics",
+/// §5.13). J0 and J1 by their power series (solver/tests/eddy.rs checks the same series
+/// against mpmath).
+fn wire_ac_dc_ratio(a: f64, sigma: f64, f: f64) -> f64 {
+    use num_complex::Complex64 as C;
+    let bessel_j = |n: u32, z: C| -> C {
+        let h = z / 2.0;
+        let mut term = if n == 0 { C::new(1.0, 0.0) } else { h };
+        let mut sum = term;
+        for m in 1..200 {
+            term = term * (-h * h) / (m as f64 * (m + n) as f64);
+            sum += term;
+            if term.norm() < 1e-18 * sum.norm() {
+                break;
+            }
+        }
+        sum
+    };
+    let delta = (1.0 / (std::f64::consts::PI * f * fluxpick_solver::MU0 * sigma)).sqrt();
+    let ka = C::new(1.0, -1.0) * (a / delta);
+    (ka / 2.0 * bessel_j(0, ka) / bessel_j(1, ka)).re
+}
+
+/// The standard cases: (name, case text, figure, reference) per size.
+fn standard(size: &str) -> Vec<(String, String, &'static str, f64)> {
+    // (planar h_air, h_wire), (axi h_air, h_core), (eddy h_air, h_wire)
+    let (p, a, e) = match size {
+        "50k" => ((7.0, 1.8), (4.0, 1.0), (7.0, 0.7)),
+        "200k" => ((3.5, 0.9), (2.0, 0.5), (3.5, 0.35)),
+        "1m" => ((1.57, 0.4), (0.9, 0.225), (1.57, 0.16)),
+        "2m" => ((1.1, 0.28), (0.63, 0.16), (1.1, 0.11)),
+        _ => unreachable!("size"),
+    };
+    vec![
+        (
+            format!("planar-{size}"),
+            planar(p.0, p.1),
+            "wire",
+            2e-7 * 100.0 / 0.1,
+        ),
+        (format!("axi-{size}"), axi(a.0, a.1), "spheroid", 17.6164),
+        (
+            format!("eddy-{size}"),
+            wire60(e.0, e.1),
+            "rac",
+            wire_ac_dc_ratio(0.02, 3.5e7, 60.0),
+        ),
+    ]
+}
+
+/// Peak resident set size of this process (VmHWM), in MB.
+fn peak_rss_mb() -> f64 {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM:"))
+                .and_then(|l| l.split_whitespace().nth(1)?.parse::<f64>().ok())
+        })
+        .map(|kb| kb / 1024.0)
+        .unwrap_or(f64::NAN)
+}
+
+/// One standard case in this process: prints one machine-readable line
+/// `ROW name unknowns triangles mesh asm factor solve post write total rss error`.
+fn one(name: &str) {
+    let size = name.rsplit('-').next().unwrap();
+    let (name, text, figure, reference) = standard(size)
+        .into_iter()
+        .find(|c| c.0 == name)
+        .expect("known case");
     let dir = std::env::temp_dir().join(format!("fluxpick-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join(format!("{name}.toml"));
-    std::fs::write(&path, text).unwrap();
+    std::fs::write(&path, &text).unwrap();
     let case = load_case(&path).expect("bench case");
     let t0 = Instant::now();
     let r = run(&case).expect("bench solve");
+    let t1 = Instant::now();
+    fluxpick::output::write_results_json(&dir.join("results.json"), &r.results).unwrap();
+    fluxpick::output::write_field_vtu(&dir.join("field.vtu"), &case, &r).unwrap();
+    let write = t1.elapsed().as_secs_f64();
     let total = t0.elapsed().as_secs_f64();
     let s = &r.results.solve;
     let value = match figure {
@@ -78,10 +189,13 @@ fn bench(name: &str, text: &str, figure: &str, reference: f64) {
             let b = r.results.probes["p"].b_t[0].expect("probe inside");
             b[0].hypot(b[1])
         }
+        "rac" => r.results.conductors["wire"]
+            .ac_dc_ratio
+            .expect("a ratio at 60 Hz"),
         _ => r.results.parts["spheroid"].b_mean_t / 1e-3,
     };
     println!(
-        "{name:<24} {:>9} unknowns {:>9} tri | mesh {:>6.2} asm {:>6.2} factor {:>6.2} solve {:>6.2} post {:>6.2} | total {:>6.2} s | {:>9.0} unknowns/s | error {:.2e}",
+        "ROW {name} {} {} {} {} {} {} {} {write} {total} {} {}",
         r.results.mesh.unknowns,
         r.results.mesh.triangles,
         s.mesh_s,
@@ -89,11 +203,71 @@ fn bench(name: &str, text: &str, figure: &str, reference: f64) {
         s.factor_s,
         s.solve_s,
         s.post_s,
-        total,
-        r.results.mesh.unknowns as f64 / total,
+        peak_rss_mb(),
         (value - reference).abs() / reference
     );
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+struct Row {
+    name: String,
+    unknowns: f64,
+    total: f64,
+    rss: f64,
+}
+
+/// Runs `one(name)` in a child process and prints its row.
+fn child(name: &str) -> Option<Row> {
+    let exe = std::env::current_exe().unwrap();
+    let out = std::process::Command::new(exe)
+        .env("FLUXPICK_BENCH_ONE", name)
+        .output()
+        .expect("run the benchmark child");
+    let text = String::from_utf8_lossy(&out.stdout);
+    let Some(line) = text.lines().find(|l| l.starts_with("ROW ")) else {
+        println!(
+            "{name:<12} failed: {}",
+            String::from_utf8_lossy(&out.stderr).trim()
+        );
+        return None;
+    };
+    let f: Vec<&str> = line.split_whitespace().collect();
+    let x = |i: usize| f[i].parse::<f64>().unwrap();
+    println!(
+        "{:<12} {:>9} {:>9} | {:>6.2} {:>6.2} {:>6.2} {:>6.2} {:>6.2} {:>6.2} | {:>6.2} | {:>9.0} | {:>7.0} | {:>8.1e}",
+        f[1],
+        f[2],
+        f[3],
+        x(4),
+        x(5),
+        x(6),
+        x(7),
+        x(8),
+        x(9),
+        x(10),
+        x(2) / x(10),
+        x(11),
+        x(12)
+    );
+    Some(Row {
+        name: f[1].to_string(),
+        unknowns: x(2),
+        total: x(10),
+        rss: x(11),
+    })
+}
+
+/// Least-squares slope of log y against log x.
+fn exponent(pts: &[(f64, f64)]) -> f64 {
+    let n = pts.len() as f64;
+    let (mx, my) = pts.iter().fold((0.0, 0.0), |(a, b), (x, y)| {
+        (a + x.ln() / n, b + y.ln() / n)
+    });
+    let (num, den) = pts.iter().fold((0.0, 0.0), |(a, b), (x, y)| {
+        let dx = x.ln() - mx;
+        (a + dx * (y.ln() - my), b + dx * dx)
+    });
+    num / den
 }
 
 /// Three copper bars at 630 A in three phases beside a 3 mm steel wall (μr 200, 5 MS/m).
@@ -147,7 +321,7 @@ fn eddy_bench() {
     let s = &r.results.solve;
     println!(
         "{:<24} {:>9} unknowns {:>9} tri | mesh {:>6.2} asm {:>6.2} factor {:>6.2} solve {:>6.2} post {:>6.2} | total {:>6.2} s | {} GMRES iterations",
-        "planar-eddy",
+        "wall-eddy",
         r.results.mesh.unknowns,
         r.results.mesh.triangles,
         s.mesh_s,
@@ -224,21 +398,60 @@ fn sweep_bench() {
 }
 
 fn main() {
+    if let Ok(name) = std::env::var("FLUXPICK_BENCH_ONE") {
+        one(&name);
+        return;
+    }
     let filter: Vec<String> = std::env::args()
         .skip(1)
         .filter(|a| !a.starts_with("--"))
+        .map(|a| a.to_lowercase())
         .collect();
-    let want = |n: &str| filter.is_empty() || filter.iter().any(|f| n.contains(f.as_str()));
-    let wire = 2e-7 * 100.0 / 0.1;
-    if want("small") {
-        bench("planar-200k", &planar(3.5, 0.9), "wire", wire);
-        bench("axi-200k", &axi(2.0, 0.5), "spheroid", 17.6164);
+    let want = |n: &str| filter.is_empty() || filter.iter().all(|f| n.contains(f.as_str()));
+    let sizes = if filter.iter().any(|f| f == "2m") {
+        vec!["50k", "200k", "1m", "2m"]
+    } else {
+        vec!["50k", "200k", "1m"]
+    };
+    let mut names = Vec::new();
+    for size in &sizes {
+        for (name, ..) in standard(size) {
+            if filter.is_empty()
+                || filter
+                    .iter()
+                    .all(|f| name.contains(f.as_str()) || f == "2m")
+            {
+                names.push(name);
+            }
+        }
     }
-    if want("large") {
-        bench("planar-1M", &planar(1.57, 0.4), "wire", wire);
-        bench("axi-1M", &axi(0.9, 0.225), "spheroid", 17.6164);
+    if !names.is_empty() {
+        println!(
+            "machine: {} threads; seconds per stage; peak RSS in MB; error of the figure vs its reference",
+            rayon::current_num_threads()
+        );
+        println!(
+            "{:<12} {:>9} {:>9} | {:>6} {:>6} {:>6} {:>6} {:>6} {:>6} | {:>6} | {:>9} | {:>7} | {:>8}",
+            "case", "unknowns", "triangles", "mesh", "asm", "factor", "solve", "post", "write",
+            "total", "unknowns/s", "RSS MB", "error"
+        );
     }
-    if want("eddy") {
+    let rows: Vec<Row> = names.iter().filter_map(|n| child(n)).collect();
+    for kind in ["planar", "axi", "eddy"] {
+        let pts: Vec<&Row> = rows.iter().filter(|r| r.name.starts_with(kind)).collect();
+        if pts.len() >= 2 {
+            let t: Vec<(f64, f64)> = pts.iter().map(|r| (r.unknowns, r.total)).collect();
+            let m: Vec<(f64, f64)> = pts.iter().map(|r| (r.unknowns, r.rss)).collect();
+            println!(
+                "{kind}: time ∝ n^{:.2}, memory ∝ n^{:.2} over {:.0}k to {:.0}k unknowns",
+                exponent(&t),
+                exponent(&m),
+                pts[0].unknowns / 1e3,
+                pts[pts.len() - 1].unknowns / 1e3
+            );
+        }
+    }
+    if want("wall") {
         eddy_bench();
     }
     if want("sweep") {

@@ -4,6 +4,7 @@ use crate::build::{image_offset, mesh_domain, mesh_image};
 use crate::error::MeshError;
 use crate::geom::BBox;
 use crate::shape::{arc_range, DomainKind};
+use crate::sizemap::SizeMap;
 use crate::{BoundaryEdge, ExteriorImage, Mesh, MeshSpec, Point, Side};
 
 /// Meshes `spec`: a constrained Delaunay triangulation of the outer boundary and all region
@@ -23,7 +24,18 @@ use crate::{BoundaryEdge, ExteriorImage, Mesh, MeshSpec, Point, Side};
 ///
 /// Vertices are renumbered along a Hilbert curve. Errors rather than panics on bad input.
 pub fn generate(spec: &MeshSpec) -> Result<Mesh, MeshError> {
-    let (domain, regions, dm) = mesh_domain(spec)?;
+    generate_with(spec, None)
+}
+
+/// [`generate`] with adaptive targets: at every point the size is the smaller of the spec's
+/// size field and `map`'s value there (a mesh refined where an error indicator asked for it,
+/// made anew by the same constrained Delaunay refinement, so the angle bound holds).
+pub fn generate_refined(spec: &MeshSpec, map: &SizeMap) -> Result<Mesh, MeshError> {
+    generate_with(spec, Some(map))
+}
+
+fn generate_with(spec: &MeshSpec, map: Option<&SizeMap>) -> Result<Mesh, MeshError> {
+    let (domain, regions, dm) = mesh_domain(spec, map)?;
     let nreg = regions.len();
     for r in 1..=nreg as u32 {
         if !dm.tags.contains(&r) {

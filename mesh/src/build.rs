@@ -19,6 +19,7 @@ use crate::geom::{dist2, dist2_point_segment, BBox};
 use crate::grid::{PointGrid, SegGrid};
 use crate::shape::{resolve_all, Domain, DomainKind, RegionGeometry, SPACING};
 use crate::size::SizeField;
+use crate::sizemap::SizeMap;
 use crate::tag::{tag_faces, Cdt};
 use crate::{BoundaryEdge, Cuts, MeshSpec, Point, Side};
 use spade::handles::FixedVertexHandle;
@@ -336,10 +337,11 @@ pub(crate) fn cut_side(a: Point, b: Point, c: Point, cuts: Cuts, tol: f64) -> Op
 
 pub(crate) fn mesh_domain(
     spec: &MeshSpec,
+    map: Option<&SizeMap>,
 ) -> Result<(Domain, Vec<RegionGeometry>, DomainMesh), MeshError> {
     let (domain, regions) = resolve_all(spec)?;
     let bg = spec.background_max_edge;
-    let size = SizeField::new(bg, spec.params.grading, &regions);
+    let size = SizeField::new(bg, spec.params.grading, &regions).with_map(map);
     let scale = domain.bbox.diag();
     let tol = SNAP_REL * scale;
 

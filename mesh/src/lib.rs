@@ -45,15 +45,17 @@ mod grid;
 mod quadratic;
 pub mod shape;
 mod size;
+pub mod sizemap;
 pub mod stats;
 mod tag;
 
-pub use assemble::{generate, renumber_hilbert};
+pub use assemble::{generate, generate_refined, renumber_hilbert};
 pub use build::MAX_SIZE_PASSES;
 pub use check::expected_region_areas;
 pub use error::{InvariantViolation, MeshError};
 pub use geom::{polygon_area, triangle_area, triangle_min_angle_deg};
 pub use shape::{region_geometries, RegionGeometry, MIN_CURVE_SEGMENTS, SPACING};
+pub use sizemap::SizeMap;
 pub use stats::{MeshStats, RegionStats};
 pub use tag::locate_region;
 

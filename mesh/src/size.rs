@@ -13,6 +13,7 @@
 use crate::geom::BBox;
 use crate::grid::SegGrid;
 use crate::shape::RegionGeometry;
+use crate::sizemap::SizeMap;
 use crate::Point;
 
 struct Fine {
@@ -27,6 +28,8 @@ pub(crate) struct SizeField {
     pub region_h: Vec<f64>,
     slope: f64,
     fine: Vec<Fine>,
+    /// Adaptive targets from an earlier mesh (the smaller of the two counts).
+    map: Option<SizeMap>,
 }
 
 impl SizeField {
@@ -75,7 +78,20 @@ impl SizeField {
             region_h,
             slope: grading - 1.0,
             fine,
+            map: None,
         }
+    }
+
+    pub(crate) fn with_map(mut self, map: Option<&SizeMap>) -> Self {
+        self.map = map.cloned();
+        self
+    }
+
+    fn mapped(&self, p: Point) -> f64 {
+        self.map
+            .as_ref()
+            .and_then(|m| m.at(p))
+            .unwrap_or(f64::INFINITY)
     }
 
     /// Target largest edge at `p`, inside region `tag` (None: ignore the containing region,
@@ -97,7 +113,7 @@ impl SizeField {
             let d = f.grid.nearest(p, lim);
             best = best.min(f.h + self.slope * d);
         }
-        best
+        best.min(self.mapped(p))
     }
 
     /// A cheap lower bound of [`Self::at`] (bounding boxes only).
@@ -109,7 +125,7 @@ impl SizeField {
             }
             best = best.min(f.h + self.slope * f.bbox.dist(p));
         }
-        best
+        best.min(self.mapped(p))
     }
 
     /// The smallest size anywhere.

@@ -150,15 +150,21 @@ impl Pattern {
     /// y = A x for the symmetric matrix with these values.
     pub fn mul<T>(&self, values: &[T], x: &[T]) -> Vec<T>
     where
-        T: Copy + Default + std::ops::AddAssign + std::ops::Mul<Output = T>,
+        T: Copy + Default + Send + Sync + std::ops::AddAssign + std::ops::Mul<Output = T>,
     {
+        // The matrix is symmetric with both triangles stored, so column i is row i: each
+        // entry of y is a gather over one column, and rows are independent.
         let mut y = vec![T::default(); self.n];
-        for j in 0..self.n {
-            let xj = x[j];
-            for k in self.col_ptr[j]..self.col_ptr[j + 1] {
-                y[self.row_idx[k]] += values[k] * xj;
+        y.par_chunks_mut(4096).enumerate().for_each(|(b, chunk)| {
+            for (o, yi) in chunk.iter_mut().enumerate() {
+                let i = b * 4096 + o;
+                let mut s = T::default();
+                for k in self.col_ptr[i]..self.col_ptr[i + 1] {
+                    s += values[k] * x[self.row_idx[k]];
+                }
+                *yi = s;
             }
-        }
+        });
         y
     }
 }

@@ -27,7 +27,7 @@ use crate::assembly::Pattern;
 use crate::discretisation::{Discretisation, Order, FIXED};
 use crate::element::{local_matrices, Basis, Local, Reluctivity, P1, P2};
 use crate::field::{Field, Locator};
-use crate::krylov::gmres;
+use crate::krylov::gmres_batch;
 use crate::linsolve::{CholeskyAnalysis, RESIDUAL_TOLERANCE};
 use crate::problem::{Problem, Spread};
 use crate::statics::{background_potential, Density, Timings};
@@ -531,31 +531,44 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
 
     let t0 = Instant::now();
     let apply = |x: &[c64]| pattern.mul(&values, x);
-    let precond = |v: &[c64]| -> Vec<c64> {
-        let re: Vec<f64> = v.iter().map(|z| z.re).collect();
-        let im: Vec<f64> = v.iter().map(|z| z.im).collect();
-        let out = chol.solve(&[re, im]);
-        out[0]
-            .iter()
-            .zip(&out[1])
-            .map(|(a, b)| c64::new(*a, *b))
+    // P⁻¹ for a batch of complex vectors: their real and imaginary parts as the columns
+    // of one block solve.
+    let precond = |vs: &[&[c64]]| -> Vec<Vec<c64>> {
+        let n = nd;
+        let mut block = vec![0.0; 2 * n * vs.len()];
+        for (j, v) in vs.iter().enumerate() {
+            let (re, im) = block[2 * j * n..2 * (j + 1) * n].split_at_mut(n);
+            for (i, z) in v.iter().enumerate() {
+                re[i] = z.re;
+                im[i] = z.im;
+            }
+        }
+        for chunk in block.chunks_mut(2 * n * 8) {
+            let k = chunk.len() / n;
+            chol.solve_block(chunk, k);
+        }
+        block
+            .chunks(2 * n)
+            .map(|c| {
+                let (re, im) = c.split_at(n);
+                re.iter().zip(im).map(|(a, b)| c64::new(*a, *b)).collect()
+            })
             .collect()
     };
     // Schur complement of the constraints, C = −jω b: Y_k = Ã⁻¹ (jω b_k) so that
     // A = X0 + Σ Y_k ψ_k, and S ψ = g − Cᵀ X0 with S = D + Cᵀ Y. All the inner solves
-    // (one per constraint, one per right-hand side) are independent: run them in parallel.
+    // (one per constraint, one per right-hand side) are independent: run them together,
+    // one block solve of the preconditioner per iteration for all of them.
     let mut cols: Vec<Vec<c64>> = bvec
         .iter()
         .map(|b| b.iter().map(|v| jw * *v).collect())
         .collect();
     cols.extend(rhs.iter().map(|(f, _)| f.clone()));
-    let solved: Vec<(Vec<c64>, usize, f64)> = cols
-        .par_iter()
-        .map(|f| {
-            let (x, rep) = gmres(f, apply, precond, INNER_TOLERANCE, 40, 3000);
-            (x, rep.iterations, rep.relative_residual)
-        })
-        .collect();
+    let solved: Vec<(Vec<c64>, usize, f64)> =
+        gmres_batch(&cols, apply, precond, INNER_TOLERANCE, 40, 3000)
+            .into_iter()
+            .map(|(x, rep)| (x, rep.iterations, rep.relative_residual))
+            .collect();
     drop(cols);
     let mut iterations = 0;
     let mut sols = Vec::with_capacity(solved.len());

@@ -47,6 +47,7 @@ pub mod assembly;
 pub mod bh;
 pub mod discretisation;
 pub mod element;
+pub mod estimate;
 pub mod field;
 pub mod harmonic;
 pub mod krylov;

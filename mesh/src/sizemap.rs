@@ -1,0 +1,140 @@
+//! A size map for adaptive refinement: a target largest edge per triangle of an earlier
+//! mesh, looked up by point. [`crate::generate_refined`] meshes a spec again with each
+//! point's size the smaller of the spec's size field and the map's value there.
+
+use crate::Point;
+
+/// Target largest edge on the triangles of a triangulation (outside them: no target).
+#[derive(Clone, Debug)]
+pub struct SizeMap {
+    points: Vec<Point>,
+    triangles: Vec<[u32; 3]>,
+    h: Vec<f64>,
+    min: Point,
+    cell: [f64; 2],
+    dims: [usize; 2],
+    start: Vec<u32>,
+    items: Vec<u32>,
+}
+
+impl SizeMap {
+    /// `h[t]` is the target largest edge on triangle `t`. Non-positive or non-finite targets
+    /// are ignored (no target there).
+    pub fn new(points: Vec<Point>, triangles: Vec<[u32; 3]>, h: Vec<f64>) -> Self {
+        assert_eq!(triangles.len(), h.len(), "one target per triangle");
+        let mut min = [f64::INFINITY; 2];
+        let mut max = [f64::NEG_INFINITY; 2];
+        for t in &triangles {
+            for &v in t {
+                let p = points[v as usize];
+                for k in 0..2 {
+                    min[k] = min[k].min(p[k]);
+                    max[k] = max[k].max(p[k]);
+                }
+            }
+        }
+        let n = ((triangles.len() as f64).sqrt().ceil() as usize).max(1);
+        let dims = [n, n];
+        let span = [(max[0] - min[0]).max(1e-300), (max[1] - min[1]).max(1e-300)];
+        let cell = [span[0] / n as f64, span[1] / n as f64];
+        let bucket = |x: f64, k: usize| -> usize {
+            (((x - min[k]) / cell[k]).floor().max(0.0) as usize).min(dims[k] - 1)
+        };
+        let mut count = vec![0u32; n * n + 1];
+        let range = |t: &[u32; 3]| {
+            let xs = t.map(|v| points[v as usize]);
+            let lo = [0, 1].map(|k| xs.iter().map(|p| p[k]).fold(f64::INFINITY, f64::min));
+            let hi = [0, 1].map(|k| xs.iter().map(|p| p[k]).fold(f64::NEG_INFINITY, f64::max));
+            (
+                bucket(lo[0], 0)..=bucket(hi[0], 0),
+                bucket(lo[1], 1)..=bucket(hi[1], 1),
+            )
+        };
+        for t in &triangles {
+            let (ri, rj) = range(t);
+            for j in rj {
+                for i in ri.clone() {
+                    count[j * n + i + 1] += 1;
+                }
+            }
+        }
+        for b in 0..n * n {
+            count[b + 1] += count[b];
+        }
+        let start = count.clone();
+        let mut fill = count;
+        let mut items = vec![0u32; start[n * n] as usize];
+        for (ti, t) in triangles.iter().enumerate() {
+            let (ri, rj) = range(t);
+            for j in rj {
+                for i in ri.clone() {
+                    let b = j * n + i;
+                    items[fill[b] as usize] = ti as u32;
+                    fill[b] += 1;
+                }
+            }
+        }
+        SizeMap {
+            points,
+            triangles,
+            h,
+            min,
+            cell,
+            dims,
+            start,
+            items,
+        }
+    }
+
+    /// The target at `p`: the value of the triangle containing it (the smallest among
+    /// triangles sharing `p` on an edge), or None outside every triangle.
+    pub fn at(&self, p: Point) -> Option<f64> {
+        let fi = ((p[0] - self.min[0]) / self.cell[0]).floor();
+        let fj = ((p[1] - self.min[1]) / self.cell[1]).floor();
+        if !(fi >= -1.0 && fi <= self.dims[0] as f64 && fj >= -1.0 && fj <= self.dims[1] as f64) {
+            return None;
+        }
+        let i = (fi.max(0.0) as usize).min(self.dims[0] - 1);
+        let j = (fj.max(0.0) as usize).min(self.dims[1] - 1);
+        let b = j * self.dims[0] + i;
+        let mut best: Option<f64> = None;
+        for &t in &self.items[self.start[b] as usize..self.start[b + 1] as usize] {
+            let h = self.h[t as usize];
+            if !(h > 0.0 && h.is_finite()) || best.is_some_and(|x| x <= h) {
+                continue;
+            }
+            let [a, bb, c] = self.triangles[t as usize].map(|v| self.points[v as usize]);
+            let cross = |u: Point, v: Point, w: Point| {
+                (v[0] - u[0]) * (w[1] - u[1]) - (v[1] - u[1]) * (w[0] - u[0])
+            };
+            let area = cross(a, bb, c);
+            let tol = -1e-12 * area.abs();
+            let inside = |s: f64| if area > 0.0 { s >= tol } else { s <= -tol };
+            if inside(cross(a, bb, p)) && inside(cross(bb, c, p)) && inside(cross(c, a, p)) {
+                best = Some(h);
+            }
+        }
+        best
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn looks_up_the_containing_triangle() {
+        // unit square as two triangles with targets 0.1 and 0.2
+        let m = SizeMap::new(
+            vec![[0.0, 0.0], [1.0, 0.0], [1.0, 1.0], [0.0, 1.0]],
+            vec![[0, 1, 2], [0, 2, 3]],
+            vec![0.1, 0.2],
+        );
+        assert_eq!(m.at([0.8, 0.2]), Some(0.1));
+        assert_eq!(m.at([0.2, 0.8]), Some(0.2));
+        // on the shared diagonal: the smaller
+        assert_eq!(m.at([0.5, 0.5]), Some(0.1));
+        assert_eq!(m.at([1.5, 0.5]), None);
+        assert_eq!(m.at([-0.01, 0.5]), None);
+    }
+}
