@@ -397,6 +397,55 @@ fn sweep_bench() {
     );
 }
 
+/// Triangular-solve cost of a block of right-hand sides against the same number of single
+/// columns, on the factor of a ~250k-unknown second-order stiffness matrix.
+fn block_bench() {
+    use fluxpick_solver::assembly::Pattern;
+    use fluxpick_solver::linsolve::CholeskyAnalysis;
+    use fluxpick_solver::{Discretisation, Formulation, Order};
+    let dir = std::env::temp_dir().join(format!("fluxpick-bench-block-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("b.toml");
+    std::fs::write(&path, planar(3.2, 0.8)).unwrap();
+    let case = load_case(&path).expect("bench case");
+    let model = fluxpick::build::Model::new(&case).unwrap();
+    let mesh = fluxpick_mesh::generate(&model.spec).unwrap();
+    let d = Discretisation::new(
+        &mesh,
+        Formulation::Planar,
+        Order::Quadratic,
+        &model.dirichlet,
+    );
+    let p = Pattern::new(&d);
+    let mut values = vec![0.0; p.nnz()];
+    for j in 0..p.n {
+        for k in p.col_ptr[j]..p.col_ptr[j + 1] {
+            values[k] = if p.row_idx[k] == j { 20.0 } else { -1.0 };
+        }
+    }
+    let a = CholeskyAnalysis::new(&p).unwrap();
+    let t0 = Instant::now();
+    let f = a.factor(&p, &values).unwrap();
+    let factor = t0.elapsed().as_secs_f64();
+    for k in [1, 2, 4, 8, 16] {
+        let rhs: Vec<Vec<f64>> = (0..k).map(|c| vec![1.0 + c as f64; p.n]).collect();
+        let t0 = Instant::now();
+        for b in &rhs {
+            f.solve(std::slice::from_ref(b));
+        }
+        let single = t0.elapsed().as_secs_f64();
+        let t0 = Instant::now();
+        f.solve(&rhs);
+        let block = t0.elapsed().as_secs_f64();
+        println!(
+            "block solve, {} unknowns (factor {factor:.2} s): {k:>2} columns one by one {single:.3} s, as one block {block:.3} s ({:.1}x)",
+            p.n,
+            single / block
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 fn main() {
     if let Ok(name) = std::env::var("FLUXPICK_BENCH_ONE") {
         one(&name);
@@ -456,5 +505,8 @@ fn main() {
     }
     if want("sweep") {
         sweep_bench();
+    }
+    if want("block") {
+        block_bench();
     }
 }

@@ -6,6 +6,7 @@
 //! Studies of many solves are in [`sweep`]. The command-line front end is [`cli`];
 //! `src/main.rs` only calls it.
 
+pub mod adapt;
 pub mod build;
 pub mod case;
 pub mod cli;

@@ -162,6 +162,15 @@ pub fn write_field_vtu(path: &Path, case: &Case, run: &Run) -> std::io::Result<(
         "region",
         cells.iter().map(|&c| f64::from(d.cell_region[c])).collect(),
     ));
+    // √ of the cell's share of the estimated relative error energy: large where the mesh is
+    // too coarse for the figures
+    cell_data.push(DataArray::scalar(
+        "error_indicator",
+        cells
+            .iter()
+            .map(|&c| run.error_indicator.get(c).map_or(0.0, |v| v.sqrt()))
+            .collect(),
+    ));
     let grid = Grid {
         points,
         cells: conn,
@@ -223,6 +232,16 @@ pub fn eng(v: f64, unit: &str) -> String {
     format!("{x:.digits$} {p}{unit}")
 }
 
+/// " ± x %" for an estimated relative error (empty without one).
+fn pm(err: Option<f64>) -> String {
+    match err {
+        Some(e) if e >= 0.01 => format!(" ± {:.1} %", 100.0 * e),
+        Some(e) if e >= 1e-4 => format!(" ± {:.2} %", 100.0 * e),
+        Some(e) => format!(" ± {:.0e} %", 100.0 * e),
+        None => String::new(),
+    }
+}
+
 /// The terminal summary of a solve.
 pub fn summary(r: &Results) -> String {
     let mut s = String::new();
@@ -240,7 +259,23 @@ pub fn summary(r: &Results) -> String {
     if let Some(d) = r.depth_m {
         let _ = writeln!(s, "planar figures are for a depth of {}", eng(d, "m"));
     }
-    let _ = writeln!(s, "stored energy {}", eng(r.energy_j, "J"));
+    if let Some(a) = &r.accuracy {
+        let last = a.refinement.last();
+        let _ = writeln!(
+            s,
+            "accuracy: target {} %, {} after {} passes (largest estimated error {:.3} %)",
+            100.0 * a.target,
+            a.stopped,
+            a.refinement.len(),
+            100.0 * last.map_or(f64::NAN, |p| p.worst)
+        );
+    }
+    let _ = writeln!(
+        s,
+        "stored energy {}{}",
+        eng(r.energy_j, "J"),
+        pm(r.energy_j_err)
+    );
     let na = |v: Option<f64>, u: &str| v.map_or("n/a".to_string(), |v| eng(v, u));
     let ac = r.frequency_hz > 0.0;
     for (name, c) in &r.coils {
@@ -256,19 +291,26 @@ pub fn summary(r: &Results) -> String {
         if ac {
             let _ = writeln!(
                 s,
-                "  flux linkage {} at {:.1}°, EMF {} rms at {:.1}°",
+                "  flux linkage {}{} at {:.1}°, EMF {} rms at {:.1}°",
                 eng(c.flux_linkage_wb, "Wb"),
+                pm(c.flux_linkage_wb_err),
                 c.flux_linkage_wb_phase_deg,
                 eng(c.emf_v, "V"),
                 c.emf_v_phase_deg
             );
         } else {
-            let _ = writeln!(s, "  flux linkage {}", eng(c.flux_linkage_wb, "Wb"));
+            let _ = writeln!(
+                s,
+                "  flux linkage {}{}",
+                eng(c.flux_linkage_wb, "Wb"),
+                pm(c.flux_linkage_wb_err)
+            );
         }
         let _ = writeln!(
             s,
-            "  L {} (energy check {}), R {} winding + {} induced, Q {}",
+            "  L {}{} (energy check {}), R {} winding + {} induced, Q {}",
             eng(c.inductance_h, "H"),
+            pm(c.inductance_h_err),
             eng(c.inductance_energy_h, "H"),
             eng(c.resistance_ohm, "Ω"),
             eng(c.eddy_resistance_ohm, "Ω"),
@@ -288,7 +330,12 @@ pub fn summary(r: &Results) -> String {
                 Some(x) => format!("into {}: {}", eng(x, "Ω"), na(c.load_power_w, "W")),
                 None => "into a matched load".into(),
             };
-            let _ = writeln!(s, "  power matched {}, {load}", na(c.matched_power_w, "W"));
+            let _ = writeln!(
+                s,
+                "  power matched {}{}, {load}",
+                na(c.matched_power_w, "W"),
+                pm(c.matched_power_w_err)
+            );
             if let Some(e) = c.storage_energy_j {
                 let _ = writeln!(
                     s,
@@ -309,21 +356,25 @@ pub fn summary(r: &Results) -> String {
             let _ = writeln!(s, "  circuit figures: n/a at 0 Hz");
         }
         if let Some(a) = c.equivalent_area_m2 {
-            let _ = writeln!(s, "  equivalent area {a:.4e} m² (flux linkage / applied b)");
+            let _ = writeln!(
+                s,
+                "  equivalent area {a:.4e} m²{} (flux linkage / applied b)",
+                pm(c.equivalent_area_m2_err)
+            );
         }
     }
     if !r.parts.is_empty() {
         let _ = writeln!(
             s,
-            "\n{:<14} {:>12} {:>12} {:>10} {:>10} {:>12}",
+            "\n{:<14} {:>20} {:>12} {:>10} {:>10} {:>12}",
             "part", "mean |B|", "peak |B|", "peak/sat", "μ app.", "loss"
         );
         for (name, p) in &r.parts {
             let _ = writeln!(
                 s,
-                "{:<14} {:>12} {:>12} {:>10} {:>10} {:>12}",
+                "{:<14} {:>20} {:>12} {:>10} {:>10} {:>12}",
                 name,
-                eng(p.b_mean_t, "T"),
+                format!("{}{}", eng(p.b_mean_t, "T"), pm(p.b_mean_t_err)),
                 eng(p.b_peak_t, "T"),
                 p.b_peak_over_sat
                     .map_or("-".into(), |x| format!("{:.1} %", 100.0 * x)),
@@ -346,7 +397,8 @@ pub fn summary(r: &Results) -> String {
                 name,
                 eng(c.current_a, "A"),
                 eng(c.resistance_ohm, "Ω"),
-                c.ac_dc_ratio.map_or("-".into(), |x| format!("{x:.3}")),
+                c.ac_dc_ratio
+                    .map_or("-".into(), |x| format!("{x:.3}{}", pm(c.ac_dc_ratio_err))),
                 eng(c.loss_w, "W")
             );
         }

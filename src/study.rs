@@ -9,12 +9,13 @@ use std::collections::BTreeMap;
 use std::f64::consts::TAU;
 use std::time::Instant;
 
-use fluxpick_mesh::Mesh;
+use fluxpick_mesh::{Mesh, SizeMap};
 use std::sync::Arc;
 
 use fluxpick_postproc::figures::{domain_energy, flux_linkage, region_flux};
 use fluxpick_postproc::{circuit, probe, wire};
 use fluxpick_solver::bh::BhCurve;
+use fluxpick_solver::estimate::{estimate, Use as EstUse};
 use fluxpick_solver::nonlinear::{solve_nonlinear, NewtonOptions, NonlinearError};
 use fluxpick_solver::{
     solve_harmonic, solve_static, Discretisation, Field, Formulation, HarmonicSolution, Problem,
@@ -71,8 +72,12 @@ pub struct MeshFigures {
 pub struct PartFigures {
     pub material: String,
     pub b_mean_t: f64,
+    /// Estimated relative discretisation error of `b_mean_t` (recovery estimate over the
+    /// part; so for every `_err` sibling: see DEVELOPERS.md, "Error estimates").
+    pub b_mean_t_err: Option<f64>,
     pub b_peak_t: f64,
     pub loss_w: f64,
+    pub loss_w_err: Option<f64>,
     pub b_sat_t: Option<f64>,
     /// Peak |B| over the material's saturation flux density.
     pub b_peak_over_sat: Option<f64>,
@@ -91,17 +96,22 @@ pub struct ConductorFigures {
     pub b_peak_t: f64,
     /// Loss in the conductor with every source on (W, for the model depth).
     pub loss_w: f64,
+    pub loss_w_err: Option<f64>,
     /// AC resistance from loss / I² (at I = 0: from its own 1 A alone).
     pub resistance_ohm: f64,
+    pub resistance_ohm_err: Option<f64>,
     pub dc_resistance_ohm: f64,
     pub ac_dc_ratio: Option<f64>,
+    pub ac_dc_ratio_err: Option<f64>,
     /// 2W/I² of its own field inside the conductor (internal inductance).
     pub internal_inductance_h: f64,
+    pub internal_inductance_h_err: Option<f64>,
     /// ω × internal inductance (null when static).
     pub internal_reactance_ohm: Option<f64>,
     /// Flux route (at f > 0: Im(Z)/ω) for the model's extent: in planar form the loop
     /// closes at the outer boundary (or at infinity for an open one: grows with its size).
     pub inductance_h: f64,
+    pub inductance_h_err: Option<f64>,
     pub skin_depth_m: Option<f64>,
     /// Voltage across the conductor for the model depth (rms; static: 0): the resistive
     /// drop plus the induced part, the loop closing at the outer boundary.
@@ -115,11 +125,14 @@ pub struct ConductorFigures {
 pub struct CoilFigures {
     pub turns: f64,
     pub flux_linkage_wb: f64,
+    pub flux_linkage_wb_err: Option<f64>,
     pub flux_linkage_wb_phase_deg: f64,
     pub emf_v: f64,
+    pub emf_v_err: Option<f64>,
     pub emf_v_phase_deg: f64,
     /// Flux route: flux linkage per ampere of its own current.
     pub inductance_h: f64,
+    pub inductance_h_err: Option<f64>,
     /// Energy route: 2W/I², for the check that both agree.
     pub inductance_energy_h: f64,
     pub resistance_ohm: f64,
@@ -129,8 +142,11 @@ pub struct CoilFigures {
     pub mean_turn_length_m: f64,
     pub copper_mass_kg: f64,
     pub q: Option<f64>,
+    pub q_err: Option<f64>,
     pub tuning_capacitance_f: Option<f64>,
+    pub tuning_capacitance_f_err: Option<f64>,
     pub matched_power_w: Option<f64>,
+    pub matched_power_w_err: Option<f64>,
     /// Copper cross-section window (one side for planar coils), m², and the turns of the
     /// bare wire that fit it at the coil's fill factor.
     pub window_area_m2: f64,
@@ -163,6 +179,7 @@ pub struct CoilFigures {
     pub power_per_cm3_w: Option<f64>,
     pub power_per_gram_w: Option<f64>,
     pub equivalent_area_m2: Option<f64>,
+    pub equivalent_area_m2_err: Option<f64>,
 }
 
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -227,6 +244,7 @@ pub struct Results {
     pub depth_m: Option<f64>,
     pub mesh: MeshFigures,
     pub energy_j: f64,
+    pub energy_j_err: Option<f64>,
     pub parts: BTreeMap<String, PartFigures>,
     pub conductors: BTreeMap<String, ConductorFigures>,
     pub coils: BTreeMap<String, CoilFigures>,
@@ -234,6 +252,8 @@ pub struct Results {
     pub probes: BTreeMap<String, ProbeFigures>,
     pub skin_layers: Vec<SkinFigures>,
     pub solve: SolveFigures,
+    /// The adaptive refinement (with `model.accuracy`), pass by pass.
+    pub accuracy: Option<crate::adapt::AccuracyReport>,
     pub warnings: Vec<String>,
 }
 
@@ -246,6 +266,9 @@ pub struct Run {
     pub field: [Field; 2],
     /// Current density per cell (A/m² rms phasor; every cell, the image's zero).
     pub current_density: Vec<C>,
+    /// Per cell: the estimated relative error energy the cell contributes (the sum over the
+    /// unit solutions of η_K²/a(u, u)); what the adaptive refinement marks by.
+    pub error_indicator: Vec<f64>,
     pub results: Results,
 }
 
@@ -527,13 +550,26 @@ fn total_phasor(
     combine(&parts, like, nk)
 }
 
+/// Solves a case: on one mesh, or with `model.accuracy` set, adaptively
+/// ([`crate::adapt::run_adaptive`]).
 pub fn run(case: &Case) -> Result<Run, StudyError> {
+    match case.accuracy {
+        None => run_on(case, None),
+        Some(target) => crate::adapt::run_adaptive(case, target),
+    }
+}
+
+/// One solve, on the case's mesh or (with `map`) on a mesh refined to the map's sizes.
+pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
     let omega = TAU * case.frequency;
     let ac = case.frequency > 0.0;
     let mut warnings = Vec::new();
     let model = Model::new(case)?;
     let t0 = Instant::now();
-    let mesh = mesh_model(case, &model)?;
+    let mesh = match map {
+        None => mesh_model(case, &model)?,
+        Some(m) => fluxpick_mesh::generate_refined(&model.spec, m)?,
+    };
     let mesh_s = t0.elapsed().as_secs_f64();
     let materials = model.materials(case)?;
     let windings = model.windings(case);
@@ -726,6 +762,94 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             }
         }
     }
+    // Discretisation error estimates (estimate.rs): the recovered-error Gram matrix of the
+    // unit solutions, the background's and the total field's.
+    let est_fields = {
+        let mut v: Vec<(&Field, EstUse)> = Vec::new();
+        let drive = EstUse {
+            drive: true,
+            per_cell: false,
+        };
+        for p in unit.iter().chain(background.iter()) {
+            v.push((&p.f[0], drive));
+            if harmonic.is_some() {
+                v.push((&p.f[1], drive));
+            }
+        }
+        let per_cell = EstUse {
+            drive: false,
+            per_cell: true,
+        };
+        v.push((&total.f[0], per_cell));
+        if harmonic.is_some() {
+            v.push((&total.f[1], per_cell));
+        }
+        v
+    };
+    let est = estimate(&est_fields);
+    // phasor k (units, then the background) -> its real and imaginary field indices
+    let stride = if harmonic.is_some() { 2 } else { 1 };
+    let gc = |a: usize, b: usize| -> C {
+        let g = |x: usize, y: usize| est.gram[x][y];
+        let (ra, rb) = (a * stride, b * stride);
+        if stride == 1 {
+            C::new(g(ra, rb), 0.0)
+        } else {
+            C::new(g(ra, rb) - g(ra + 1, rb + 1), g(ra, rb + 1) + g(ra + 1, rb))
+        }
+    };
+    let bg_index = unit.len();
+    let bg_coef = case
+        .background
+        .as_ref()
+        .filter(|_| background.is_some())
+        .map(|b| C::from_polar(1.0, b.phase_deg.to_radians()));
+    // Error of winding i's flux linkage in the total field (per metre in planar form).
+    let linkage_err = |i: usize| -> C {
+        let mut e: C = (0..unit.len()).map(|j| currents[j] * gc(i, j)).sum();
+        if let Some(k) = bg_coef {
+            e += k * gc(i, bg_index);
+        }
+        e
+    };
+    // With B-H curves at 0 Hz the figures come from the Newton field, which the linear
+    // estimates do not describe: no estimates then.
+    let estimated = newton.is_none();
+    let rel = |err: f64, value: f64| -> Option<f64> {
+        (estimated && value.abs() > 0.0 && err.is_finite()).then(|| err.abs() / value.abs())
+    };
+    // Relative error of a field quantity over regions: √(η²/∫ν|B|²) of the total field.
+    let region_err = |regions: &[u32]| -> Option<f64> {
+        let (mut e, mut w) = (0.0, 0.0);
+        for c in (0..disc.n_cells()).filter(|&c| regions.contains(&disc.cell_region[c])) {
+            for k in 0..est.cell_error.len() {
+                e += est.cell_error[k][c];
+                w += est.cell_energy[k][c];
+            }
+        }
+        (estimated && w > 0.0).then(|| (e / w).sqrt())
+    };
+    // Relative error of a region's mean |B|: the shift of the mean when B_h is replaced by
+    // the recovered B* (the recovered field is the better one; their difference estimates
+    // the error of the mean), over the mean of |B_h|.
+    let mean_err = |regions: &[u32]| -> Option<f64> {
+        let mut shift = [0.0; 4];
+        let mut babs = 0.0;
+        for c in (0..disc.n_cells()).filter(|&c| regions.contains(&disc.cell_region[c])) {
+            for k in 0..est.cell_shift.len() {
+                shift[2 * k] += est.cell_shift[k][c][0];
+                shift[2 * k + 1] += est.cell_shift[k][c][1];
+                babs += est.cell_abs[k][c];
+            }
+        }
+        let s = shift.iter().map(|x| x * x).sum::<f64>().sqrt();
+        (estimated && babs > 0.0).then(|| s / babs)
+    };
+    let energy_err = {
+        let tot: f64 = est.cell_error.iter().flatten().sum();
+        let w: f64 = est.cell_energy.iter().flatten().sum();
+        (w > 0.0).then(|| tot / w)
+    };
     // Losses per region id (W, for the model depth).
     let region_loss: Vec<f64> = match harmonic {
         Some(h) => h
@@ -778,8 +902,12 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
                 apparent_permeability: mu_app,
                 material: p.material.clone(),
                 b_mean_t: s.b_mean,
+                b_mean_t_err: mean_err(&regions),
                 b_peak_t: s.b_peak,
                 loss_w: regions.iter().map(|&r| region_loss[r as usize]).sum(),
+                loss_w_err: region_err(&regions)
+                    .filter(|_| regions.iter().any(|&r| region_loss[r as usize] > 0.0))
+                    .map(|e| 2.0 * e),
                 b_sat_t: b_sat,
                 b_peak_over_sat: b_sat.map(|bs| s.b_peak / bs),
                 skin_depth_m: skin_of(&p.name),
@@ -854,9 +982,20 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             } else {
                 i_w * r_dc
             };
+        // the impedance per ampere of a solid conductor of the harmonic solve is a value of
+        // the bilinear form (estimate.rs): its error is the Gram self term
+        let z_err = (harmonic.is_some() && c.kind == ConductorKind::Solid)
+            .then(|| rel(gc(w, w).norm(), lambda_unit[w][w].norm()))
+            .flatten();
+        let own_err = region_err(&regions).map(|e| 2.0 * e);
         conductors.insert(
             c.name.clone(),
             ConductorFigures {
+                loss_w_err: z_err.or(own_err.filter(|_| harmonic.is_some())),
+                resistance_ohm_err: z_err,
+                ac_dc_ratio_err: z_err,
+                internal_inductance_h_err: own_err,
+                inductance_h_err: rel(gc(w, w).norm() * depth, flux_m[w][w]),
                 voltage_v: if ac { v.norm() } else { v.re },
                 voltage_v_phase_deg: if ac { v.arg().to_degrees() } else { 0.0 },
                 input_power_w: (v * i_w.conj()).re,
@@ -997,9 +1136,23 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         let wire_skin = ac.then(|| {
             c.wire.diameter / crate::build::skin_depth(case.frequency, 1.0, COPPER_CONDUCTIVITY_20C)
         });
+        let lam_err = rel(linkage_err(i).norm() * depth, lam.norm());
+        let l_err = rel(gc(i, i).norm() * depth, l);
         coils.insert(
             c.name.clone(),
             CoilFigures {
+                flux_linkage_wb_err: lam_err,
+                emf_v_err: lam_err.filter(|_| ac),
+                inductance_h_err: l_err,
+                q_err: l_err.filter(|_| q.is_some()),
+                tuning_capacitance_f_err: l_err.filter(|_| ct.is_some()),
+                matched_power_w_err: lam_err.filter(|_| pm.is_some()).map(|e| 2.0 * e),
+                equivalent_area_m2_err: match (&case.background, &background) {
+                    (Some(b), Some(bg)) if b.b != 0.0 && newton.is_none() => {
+                        rel(gc(i, bg_index).norm(), linkage(i, bg).norm())
+                    }
+                    _ => None,
+                },
                 turns: c.turns,
                 flux_linkage_wb: if ac { lam_m } else { lam.re },
                 flux_linkage_wb_phase_deg: if ac { lam_p } else { 0.0 },
@@ -1248,6 +1401,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             element_order: if quad { 2 } else { 1 },
         },
         energy_j: energy,
+        energy_j_err: energy_err.filter(|_| newton.is_none()),
         parts,
         conductors,
         coils,
@@ -1279,6 +1433,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
             newton_iterations: newton.as_ref().map(|n| n.1.iterations),
             residual_history: newton.as_ref().map(|n| n.1.residual_history.clone()),
         },
+        accuracy: None,
         warnings,
     };
     Ok(Run {
@@ -1287,6 +1442,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         disc,
         field,
         current_density,
+        error_indicator: est.cell_indicator.clone(),
         results,
     })
 }

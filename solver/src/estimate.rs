@@ -40,6 +40,9 @@ pub struct Estimate {
     /// For the fields marked `per_cell`, in their order: per cell, η_K² and ∫_K ν|B_h|² w.
     pub cell_error: Vec<Vec<f64>>,
     pub cell_energy: Vec<Vec<f64>>,
+    /// For the same fields: per cell, ∫_K (B* − B_h) w dS and ∫_K |B_h| w dS.
+    pub cell_shift: Vec<Vec<[f64; 2]>>,
+    pub cell_abs: Vec<Vec<f64>>,
 }
 
 /// Barycentric coordinates of the local nodes: vertices, then edge midpoints in the
@@ -158,6 +161,8 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
             cell_indicator: vec![],
             cell_error: vec![],
             cell_energy: vec![],
+            cell_shift: vec![],
+            cell_abs: vec![],
         };
     };
     let uses: Vec<Use> = fields.iter().map(|f| f.1).collect();
@@ -166,12 +171,15 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
     let order = d.order;
     let recovered: Vec<Vec<[[f64; 2]; 6]>> = fields.iter().map(|f| recover(f)).collect();
     // per cell: its contributions to G (m×m) and to the energies (m)
-    let per_cell: Vec<(Vec<f64>, Vec<f64>)> = (0..d.n_cells())
+    type CellSums = (Vec<f64>, Vec<f64>, Vec<[f64; 2]>, Vec<f64>);
+    let per_cell: Vec<CellSums> = (0..d.n_cells())
         .into_par_iter()
         .map(|c| {
             let area = Geometry::new(d.vertices(c)).area;
             let mut g = vec![0.0; m * m];
             let mut e = vec![0.0; m];
+            let mut shift = vec![[0.0; 2]; m];
+            let mut babs = vec![0.0; m];
             let mut err = vec![[0.0; 2]; m];
             for q in DEGREE6.iter() {
                 let (phi, k) = shape(order, q.l);
@@ -190,6 +198,9 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
                     }
                     err[f] = [bs[0] - v.b[0], bs[1] - v.b[1]];
                     e[f] += dv * nu * (v.b[0] * v.b[0] + v.b[1] * v.b[1]);
+                    shift[f][0] += dv * err[f][0];
+                    shift[f][1] += dv * err[f][1];
+                    babs[f] += dv * v.b[0].hypot(v.b[1]);
                 }
                 for f in 0..m {
                     for h in f..m {
@@ -197,12 +208,12 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
                     }
                 }
             }
-            (g, e)
+            (g, e, shift, babs)
         })
         .collect();
     let mut gram = vec![vec![0.0; m]; m];
     let mut energy = vec![0.0; m];
-    for (g, e) in &per_cell {
+    for (g, e, _, _) in &per_cell {
         for f in 0..m {
             energy[f] += e[f];
             for h in f..m {
@@ -217,7 +228,7 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
     }
     let cell_indicator = per_cell
         .iter()
-        .map(|(g, _)| {
+        .map(|(g, ..)| {
             (0..m)
                 .filter(|&f| uses[f].drive && energy[f] > 0.0)
                 .map(|f| g[f * m + f] / energy[f])
@@ -227,11 +238,19 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
     let kept: Vec<usize> = (0..m).filter(|&f| uses[f].per_cell).collect();
     let cell_error = kept
         .iter()
-        .map(|&f| per_cell.iter().map(|(g, _)| g[f * m + f]).collect())
+        .map(|&f| per_cell.iter().map(|c| c.0[f * m + f]).collect())
         .collect();
     let cell_energy = kept
         .iter()
-        .map(|&f| per_cell.iter().map(|(_, e)| e[f]).collect())
+        .map(|&f| per_cell.iter().map(|c| c.1[f]).collect())
+        .collect();
+    let cell_shift = kept
+        .iter()
+        .map(|&f| per_cell.iter().map(|c| c.2[f]).collect())
+        .collect();
+    let cell_abs = kept
+        .iter()
+        .map(|&f| per_cell.iter().map(|c| c.3[f]).collect())
         .collect();
     Estimate {
         gram,
@@ -239,5 +258,7 @@ pub fn estimate(fields: &[(&Field, Use)]) -> Estimate {
         cell_indicator,
         cell_error,
         cell_energy,
+        cell_shift,
+        cell_abs,
     }
 }

@@ -227,6 +227,10 @@ pub struct Case {
     pub depth: f64,
     /// 1 or 2.
     pub element_order: u8,
+    /// Relative accuracy target of the adaptive refinement (None: solve on one mesh).
+    pub accuracy: Option<f64>,
+    /// Element budget of the adaptive refinement (domain triangles).
+    pub max_triangles: usize,
     /// Metres per file length unit.
     pub length_unit_m: f64,
     /// Resolved parameter values, in the file's own terms, overrides applied.
@@ -242,6 +246,9 @@ pub struct Case {
     pub probes: Vec<Probe>,
     pub sweeps: Vec<Sweep>,
 }
+
+/// Default element budget of the adaptive refinement (domain triangles).
+pub const DEFAULT_MAX_TRIANGLES: usize = 2_000_000;
 
 /// Relative permeability 1, conductivity 0.
 pub const AIR: &str = "air";

@@ -143,6 +143,12 @@ pub struct RawModel {
     pub depth: Option<SNum>,
     #[serde(default)]
     pub element_order: Option<SNum>,
+    /// Relative accuracy target of the adaptive refinement (e.g. 0.005); absent: one mesh.
+    #[serde(default)]
+    pub accuracy: Option<SNum>,
+    /// Element budget of the adaptive refinement (triangles of the domain).
+    #[serde(default)]
+    pub max_triangles: Option<SNum>,
 }
 
 /// `rect = { min, max }` or `rect = { center, size }`.

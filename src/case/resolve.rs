@@ -900,6 +900,40 @@ pub(super) fn resolve(
             }
         }
     };
+    let accuracy = match &m.accuracy {
+        None => None,
+        Some(a) => {
+            let v = cx.num(a, "model.accuracy")?;
+            if !(1e-6..=0.5).contains(&v) {
+                return Err(cx.err(
+                    K::OutOfRange,
+                    sp(a),
+                    "model.accuracy",
+                    format!(
+                        "the accuracy target is a relative error between 1e-6 and 0.5 (got {v})"
+                    ),
+                    "write e.g. accuracy = 0.005 for 0.5 %",
+                ));
+            }
+            Some(v)
+        }
+    };
+    let max_triangles = match &m.max_triangles {
+        None => super::model::DEFAULT_MAX_TRIANGLES,
+        Some(a) => {
+            let v = cx.num(a, "model.max_triangles")?;
+            if !(v >= 100.0 && v <= 5e7 && v.fract() == 0.0) {
+                return Err(cx.err(
+                    K::OutOfRange,
+                    sp(a),
+                    "model.max_triangles",
+                    format!("the element budget must be a whole number from 100 to 5e7 (got {v})"),
+                    "write e.g. max_triangles = 500000",
+                ));
+            }
+            v as usize
+        }
+    };
     let title = m
         .title
         .as_ref()
@@ -1323,6 +1357,8 @@ pub(super) fn resolve(
         frequency,
         depth,
         element_order,
+        accuracy,
+        max_triangles,
         length_unit_m: cx.unit,
         parameters: cx.params.clone(),
         domain,
