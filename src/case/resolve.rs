@@ -934,6 +934,10 @@ pub(super) fn resolve(
             v as usize
         }
     };
+    let uniform_refinement = m
+        .refinement
+        .as_ref()
+        .is_some_and(|r| *r.get_ref() == RawRefinement::Uniform);
     let title = m
         .title
         .as_ref()
@@ -1359,6 +1363,7 @@ pub(super) fn resolve(
         element_order,
         accuracy,
         max_triangles,
+        uniform_refinement,
         length_unit_m: cx.unit,
         parameters: cx.params.clone(),
         domain,
