@@ -250,8 +250,11 @@ pub fn run(
         eprintln!("error: {e}");
         1
     })?;
+    if crate::ui::json() {
+        println!("{}", serde_json::to_string_pretty(&rec).unwrap_or_default());
+    }
     // summary: the best positions
-    println!(
+    crate::say!(
         "pickup {}: equivalent area {:.4e} m², L {}, R {}; survey {} at {} Hz, {} points of probe `{}`",
         rec.pickup,
         a_eq,
@@ -264,12 +267,18 @@ pub fn run(
     );
     let mut order: Vec<&MapPoint> = rec.points.iter().collect();
     order.sort_by(|a, b| b.emf_best_v.total_cmp(&a.emf_best_v));
-    println!(
+    crate::say!(
         "{:>4} {:>10} {:>10} {:>12} {:>8} {:>12} {:>12}  note",
-        "rank", "x (m)", "y (m)", "EMF best", "axis °", "P matched", "EMF fixed"
+        "rank",
+        "x (m)",
+        "y (m)",
+        "EMF best",
+        "axis °",
+        "P matched",
+        "EMF fixed"
     );
     for (i, p) in order.iter().take(best).enumerate() {
-        println!(
+        crate::say!(
             "{:>4} {:>10.4} {:>10.4} {:>12} {:>8.1} {:>12} {:>12}  {}",
             i + 1,
             p.x_m,
@@ -286,11 +295,11 @@ pub fn run(
         );
     }
     if order.first().is_some_and(|p| p.emf_best_v > 50.0) {
-        println!(
+        crate::say!(
             "caution: EMF above 50 V at the best positions; a tuned pickup's capacitor sees about Q times that. Treat the coil and its circuit as hazardous, and follow local rules for work near live conductors"
         );
     }
-    println!(
+    crate::say!(
         "wrote {}/map.csv, map.json, map.svg{}",
         out.display(),
         if matches!(probe.kind, ProbeKind::Grid { .. }) {
