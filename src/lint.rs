@@ -259,8 +259,8 @@ pub fn lint(case: &Case) -> Vec<Warning> {
                     key: "domain".into(),
                     message: format!(
                         "the open boundary is {} from `{}`, less than {} times the largest \
-                         entry (`{}`, {}); the open boundary is exact in principle, but the \
-                         air beyond it is meshed as coarsely as domain.mesh_size",
+                         entry (`{}`, {}); the condition itself is exact, but the air beyond \
+                         it is meshed as coarsely as domain.mesh_size",
                         show(case, g.max(0.0)),
                         r.name,
                         OPEN_BOUNDARY_FACTOR,
@@ -278,4 +278,108 @@ pub fn lint(case: &Case) -> Vec<Warning> {
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A planar case: one conductor at the origin, a ferrite part, an open circle domain.
+    fn case(part: &str, domain_radius: f64, domain_mesh: f64) -> Case {
+        let text = format!(
+            r#"
+[model]
+symmetry = "planar"
+[domain]
+circle = {{ center = [0, 0], radius = {domain_radius} }}
+boundary = "open"
+mesh_size = {domain_mesh}
+[materials.ferrite]
+mu_r = 2000
+[[conductor]]
+name = "bar"
+circle = {{ center = [0, 0], radius = 5 }}
+current = 100
+mesh_size = 1
+[[part]]
+name = "core"
+material = "ferrite"
+{part}
+"#
+        );
+        crate::case::load_case_str("lint.toml", &text).unwrap()
+    }
+
+    fn keys(w: &[Warning]) -> Vec<String> {
+        w.iter()
+            .map(|w| format!("{}: {}", w.key, w.message))
+            .collect()
+    }
+
+    #[test]
+    fn a_reasonable_case_has_no_warnings() {
+        let w = lint(&case(
+            "rect = { center = [30, 0], size = [20, 4] }\nmesh_size = 1",
+            200.0,
+            20.0,
+        ));
+        assert!(w.is_empty(), "{:?}", keys(&w));
+    }
+
+    #[test]
+    fn mesh_size_larger_than_the_part() {
+        let w = lint(&case(
+            "rect = { center = [30, 0], size = [20, 4] }",
+            200.0,
+            20.0,
+        ));
+        assert_eq!(w.len(), 1, "{:?}", keys(&w));
+        assert_eq!(w[0].key, "part[0]");
+        assert!(
+            w[0].message.contains("20 mm, the domain's"),
+            "{}",
+            w[0].message
+        );
+        assert!(w[0].help.contains("mesh_size = 1"), "{}", w[0].help);
+    }
+
+    #[test]
+    fn core_far_from_every_source() {
+        // 20 mm core 600 mm from a 10 mm conductor: 30 times the core's size.
+        let w = lint(&case(
+            "rect = { center = [620, 0], size = [20, 4] }\nmesh_size = 1",
+            2000.0,
+            50.0,
+        ));
+        assert_eq!(w.len(), 1, "{:?}", keys(&w));
+        assert!(
+            w[0].message.contains("from the nearest source"),
+            "{}",
+            w[0].message
+        );
+        // At 100 mm (5 times its size) it is not far.
+        let w = lint(&case(
+            "rect = { center = [110, 0], size = [20, 4] }\nmesh_size = 1",
+            400.0,
+            50.0,
+        ));
+        assert!(w.is_empty(), "{:?}", keys(&w));
+    }
+
+    #[test]
+    fn open_boundary_close_to_the_model() {
+        // The core's corner (40, 2) is 59.95 from the boundary at radius 100, less than 3 x 20.
+        let w = lint(&case(
+            "rect = { center = [30, 0], size = [20, 4] }\nmesh_size = 1",
+            100.0,
+            20.0,
+        ));
+        assert_eq!(w.len(), 1, "{:?}", keys(&w));
+        assert_eq!(w[0].key, "domain");
+        assert!(
+            w[0].message.contains("59.95 mm from `core`"),
+            "{}",
+            w[0].message
+        );
+    }
 }
