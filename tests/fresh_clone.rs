@@ -7,8 +7,9 @@
 //! needs a Slurm scheduler).
 //!
 //! To stay fast the build uses its own target folder seeded with hard links to this build's
-//! compiled registry crates, so that only the workspace's own crates are compiled; the clone's
-//! binary cannot replace the one the other tests are running.
+//! compiled crates, and the clone's files are dated before them, so that cargo reuses them
+//! (see the comment at the seeding); the clone's binary cannot replace the one the other
+//! tests run.
 
 mod common;
 
@@ -51,6 +52,21 @@ fn link_tree(from: &Path, to: &Path) {
     }
 }
 
+/// Sets the modification time of every file under `dir` (but `.git`) to `t`.
+fn set_mtimes(dir: &Path, t: std::time::SystemTime) {
+    for e in std::fs::read_dir(dir).unwrap() {
+        let e = e.unwrap();
+        let p = e.path();
+        if p.is_dir() {
+            if e.file_name() != ".git" {
+                set_mtimes(&p, t);
+            }
+        } else if let Ok(f) = std::fs::File::options().append(true).open(&p) {
+            let _ = f.set_modified(t);
+        }
+    }
+}
+
 /// Whether README's block is one this test runs (see the module comment).
 fn runnable(block: &str) -> bool {
     !block.contains("cargo test") && !block.starts_with("#!")
@@ -73,7 +89,15 @@ fn readme_commands_work_in_a_fresh_clone() {
         String::from_utf8_lossy(&o.stderr)
     );
 
-    // Seed a target folder with this build's release dependencies.
+    // Seed a target folder with this build's compiled crates, and date the clone's files
+    // before them, so that cargo reuses what this build compiled (cargo decides freshness by
+    // modification times). A source file the clone lacks still makes cargo rebuild, from the
+    // clone's files, and fail; an uncommitted edit in this checkout is not seen (the reused
+    // crates are built from it), which cannot happen in CI's clean clone.
+    set_mtimes(
+        &clone,
+        std::time::SystemTime::UNIX_EPOCH + std::time::Duration::from_secs(978_307_200),
+    );
     let target = tmp.path().join("target");
     let ours = common::bin().parent().unwrap().to_path_buf(); // .../target/release
     for sub in ["deps", "build", ".fingerprint"] {
