@@ -110,9 +110,12 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
             "flux_linkage_wb" | "eddy_resistance_ohm" | "load_power_w"
         );
     if !rank_known {
+        let names: Vec<&str> = COLUMNS.iter().map(|c| c.0).collect();
+        let near = crate::case::error::nearest(rank, names.iter().copied())
+            .map_or(String::new(), |m| format!("did you mean `--rank {m}`? "));
         eprintln!(
-            "error: --rank {rank}: not a coil figure; use one of {}",
-            COLUMNS.iter().map(|c| c.0).collect::<Vec<_>>().join(", ")
+            "error: --rank {rank}: not a coil figure\n  help: {near}use one of {}",
+            names.join(", ")
         );
         return Err(2);
     }

@@ -153,8 +153,17 @@ pub fn run(
         None => survey.probes.first(),
     }
     .ok_or_else(|| {
+        let names: Vec<&str> = survey.probes.iter().map(|p| p.name.as_str()).collect();
+        let help =
+            match probe_name.and_then(|n| crate::case::error::nearest(n, names.iter().copied())) {
+                Some(m) => format!("did you mean `--probe {m}`?"),
+                None if names.is_empty() => {
+                    "add a [[probe]] with a grid or a line to the survey case".into()
+                }
+                None => format!("the survey's probes: {}", names.join(", ")),
+            };
         fail(format!(
-            "{}: no [[probe]]{} to map over; add a grid or line probe",
+            "{}: no [[probe]]{} to map over\n  help: {help}",
             survey_path.display(),
             probe_name.map_or(String::new(), |n| format!(" named `{n}`"))
         ))

@@ -188,3 +188,42 @@ fn quiet_verbose_json_and_no_colour() {
         assert!(!String::from_utf8_lossy(&o.stderr).contains('\u{1b}'));
     }
 }
+
+#[test]
+fn misspelt_option_values_get_the_closest_one() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    ok(&run_in(dir, &["new", "rod"], &[]), "new rod");
+    ok(&run_in(dir, &["new", "feeder"], &[]), "new feeder");
+    let o = run_in(
+        dir,
+        &["compare", "rod.toml", "--rank", "matched_powr_w"],
+        &[],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("did you mean `--rank matched_power_w`?"),
+        "{err}"
+    );
+    let o = run_in(
+        dir,
+        &[
+            "map",
+            "feeder.toml",
+            "--pickup",
+            "rod.toml",
+            "--probe",
+            "bisectr",
+            "--out",
+            "m",
+        ],
+        &[],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(err.contains("did you mean `--probe bisector`?"), "{err}");
+    let o = run_in(dir, &["explain", "fill_factr"], &[]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("coil.fill_factor"));
+}
