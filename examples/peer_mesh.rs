@@ -4,8 +4,9 @@
 //! `x y` in metres, `triangles M`, M lines `i j k region`, 0-based), solves the peer's problem
 //! on exactly that mesh with fluxpick's library crates at element order 1 or 2 (order 2 adds
 //! a node at every edge midpoint: the same straight-sided triangles), times the stages and
-//! prints one JSON line on standard output: timings, unknowns, the figure, its analytic
-//! reference and the relative error. Progress goes to standard error.
+//! prints one JSON line on standard output: timings, unknowns, peak memory after each stage,
+//! the figure, its analytic reference and the relative error. Progress goes to standard
+//! error.
 //!
 //! ```text
 //! cargo run --release --example peer_mesh -- --case C --mesh c.mesh --order 2
@@ -414,6 +415,19 @@ fn secs(t: Instant) -> f64 {
     t.elapsed().as_secs_f64()
 }
 
+/// Peak resident set size of this process so far (VmHWM, Linux), in MB; None elsewhere.
+fn peak_rss_mb() -> Option<f64> {
+    let s = std::fs::read_to_string("/proc/self/status").ok()?;
+    let kb: f64 = s
+        .lines()
+        .find(|l| l.starts_with("VmHWM:"))?
+        .split_whitespace()
+        .nth(1)?
+        .parse()
+        .ok()?;
+    Some(kb / 1024.0)
+}
+
 fn run(args: &Args) -> Result<Value, String> {
     let case = args.case.as_str();
     let (figure, refv, ref_source) = reference(case)?;
@@ -431,6 +445,7 @@ fn run(args: &Args) -> Result<Value, String> {
     let t0 = Instant::now();
     let raw = read_peer_mesh(path)?;
     let read_s = secs(t0);
+    let rss_read = peak_rss_mb();
     let triangles = raw.triangles.len();
     let t0 = Instant::now();
     let mut mesh = to_mesh(raw);
@@ -504,6 +519,7 @@ fn run(args: &Args) -> Result<Value, String> {
         "mesh": path.display().to_string(), "triangles": triangles,
         "threads": rayon::current_num_threads(),
     });
+    let rss_solve;
     let (value, times, extra) = if case == "C" {
         let t0 = Instant::now();
         let plan = HarmonicPlan::new(&problem).map_err(|e| e.to_string())?;
@@ -515,6 +531,7 @@ fn run(args: &Args) -> Result<Value, String> {
         let t0 = Instant::now();
         let sol = plan.solve(C_FREQ).map_err(|e| e.to_string())?;
         let solve_wall = secs(t0);
+        rss_solve = peak_rss_mb();
         let t = sol.timings;
         eprintln!(
             "peer_mesh C: factor {:.2} s, GMRES {:.2} s ({} iterations over {} solves)",
@@ -546,6 +563,7 @@ fn run(args: &Args) -> Result<Value, String> {
         let t0 = Instant::now();
         let sol = solve_static(&problem).map_err(|e| e.to_string())?;
         let wall = secs(t0);
+        rss_solve = peak_rss_mb();
         let t = sol.timings;
         let t0 = Instant::now();
         let mut extra = json!({"max_residual": sol.max_residual});
@@ -588,6 +606,8 @@ fn run(args: &Args) -> Result<Value, String> {
         "read": read_s, "renumber": renumber_s, "assemble": assemble, "factor": factor,
         "solve": solve, "solver_other": other, "post": post, "total": secs(t_all),
     });
+    // peak memory after each stage (monotone: the stage that raised it shows)
+    out["peak_rss_mb"] = json!({"read": rss_read, "solve": rss_solve, "post": peak_rss_mb()});
     out["figure"] = json!(figure);
     out["value"] = json!(value);
     out["reference"] = json!(refv);
