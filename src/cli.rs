@@ -18,6 +18,15 @@ use crate::study::{run, StudyError};
 pub struct Cli {
     #[command(subcommand)]
     pub command: Command,
+    /// Worker threads (default: all cores). Results do not depend on it.
+    #[arg(long, global = true, value_name = "N")]
+    pub threads: Option<usize>,
+    /// Refuse, before meshing, a case estimated to need more than N triangles.
+    #[arg(long, global = true, value_name = "N")]
+    pub max_triangles: Option<u64>,
+    /// Memory a solve may plan to use, in GB (default: 80 % of the memory available).
+    #[arg(long, global = true, value_name = "GB")]
+    pub max_memory: Option<f64>,
 }
 
 #[derive(Subcommand, Debug)]
@@ -65,9 +74,10 @@ pub enum Command {
         /// each part's peak |B|.
         #[arg(long, value_name = "KEY")]
         plot: Vec<String>,
-        /// Worker threads (default: all cores).
+        /// Continue an interrupted sweep in DIR: points already finished (its
+        /// points.partial.jsonl) are not solved again.
         #[arg(long)]
-        threads: Option<usize>,
+        resume: bool,
     },
     /// Join the sweep.json files of several shards into one sweep (csv, json, plots).
     ///
@@ -147,6 +157,12 @@ pub fn main() -> i32 {
             return code;
         }
     };
+    if let Err(code) =
+        crate::runtime::settings_from_cli(cli.threads, cli.max_triangles, cli.max_memory)
+    {
+        return code;
+    }
+    crate::interrupt::install();
     match execute(cli) {
         Ok(()) => 0,
         Err(code) => code,
@@ -175,6 +191,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             let t0 = std::time::Instant::now();
             let mesh = crate::study::mesh_model(&c, &model).map_err(|e| study_fail(&case, e))?;
             let secs = t0.elapsed().as_secs_f64();
+            let _writing = crate::interrupt::WriteGuard::new();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let path = out.join("mesh.vtu");
             output::write_mesh_vtu(&path, &c, &model, &mesh)
@@ -205,7 +222,10 @@ fn execute(cli: Cli) -> Result<(), i32> {
             plot,
         } => {
             let c = load(&case)?;
+            let spinner = crate::runtime::spinner("solving");
             let r = run(&c).map_err(|e| study_fail(&case, e))?;
+            drop(spinner);
+            let _writing = crate::interrupt::WriteGuard::new();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let vtu = out.join("field.vtu");
             output::write_field_vtu(&vtu, &c, &r).map_err(|e| io_fail("field", &vtu, e))?;
@@ -236,7 +256,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             out,
             shard,
             plot,
-            threads,
+            resume,
         } => {
             let shard = match shard.as_deref().map(|s| (s, parse_shard(s))) {
                 None => None,
@@ -262,17 +282,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
                 );
                 return Err(2);
             }
-            let pool = rayon::ThreadPoolBuilder::new()
-                .num_threads(threads.unwrap_or(0))
-                .build()
-                .map_err(|e| {
-                    eprintln!("error: cannot start the worker threads: {e}");
-                    1
-                })?;
-            let t0 = std::time::Instant::now();
-            let rec = pool.install(|| crate::sweep::run_sweep(&raw, &src, &c, shard, true));
-            let secs = t0.elapsed().as_secs_f64();
-            finish_sweep(&out, &rec, &plot, secs)
+            crate::sweep::run_resumable(&out, &raw, &src, &c, shard, resume, &plot)
         }
         Command::Merge { dirs, out } => {
             let mut recs = Vec::new();
@@ -314,7 +324,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
 }
 
 /// Writes a sweep's files and prints what it did; exit 1 when any point failed.
-fn finish_sweep(
+pub(crate) fn finish_sweep(
     out: &Path,
     rec: &crate::sweep::SweepRecord,
     plot: &[String],

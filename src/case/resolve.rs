@@ -922,7 +922,7 @@ pub(super) fn resolve(
         None => super::model::DEFAULT_MAX_TRIANGLES,
         Some(a) => {
             let v = cx.num(a, "model.max_triangles")?;
-            if !(v >= 100.0 && v <= 5e7 && v.fract() == 0.0) {
+            if !((100.0..=5e7).contains(&v) && v.fract() == 0.0) {
                 return Err(cx.err(
                     K::OutOfRange,
                     sp(a),
