@@ -359,3 +359,43 @@ current = 100
     }
     assert!(!out.exists(), "nothing written");
 }
+
+/// Ctrl-C (SIGINT) during a solve of several seconds: exit status 130 and nothing written,
+/// not even a temporary file.
+#[test]
+fn ctrl_c_during_a_solve_stops_without_writing() {
+    // the rod example meshed four times finer: about 80k triangles, several seconds
+    let text = std::fs::read_to_string(repo().join("cases/rod-uniform-field.toml"))
+        .unwrap()
+        .replace("mesh_size = 40", "mesh_size = 10")
+        .replace("mesh_size = 2", "mesh_size = 0.5");
+    let (dir, case) = write_case("rod.toml", &text);
+    let out = dir.path().join("out");
+    let child = Command::new(bin())
+        .args([
+            "solve",
+            case.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ])
+        .stdout(Stdio::null())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(Duration::from_millis(500));
+    let k = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(k.success());
+    let o = child.wait_with_output().unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(130), "{err}");
+    assert!(err.contains("interrupted"), "{err}");
+    assert!(!out.exists(), "nothing written");
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(left.len(), 1, "only the case file: {left:?}");
+}
