@@ -25,6 +25,15 @@ pub struct Cli {
     pub verbose: bool,
     #[command(subcommand)]
     pub command: Command,
+    /// Worker threads (default: all cores). Results do not depend on it.
+    #[arg(long, global = true, value_name = "N")]
+    pub threads: Option<usize>,
+    /// Refuse, before meshing, a case estimated to need more than N triangles.
+    #[arg(long, global = true, value_name = "N")]
+    pub max_triangles: Option<u64>,
+    /// Memory a solve may plan to use, in GB (default: 80 % of the memory available).
+    #[arg(long, global = true, value_name = "GB")]
+    pub max_memory: Option<f64>,
 }
 
 /// The end of `fluxpick --help`: a first session.
@@ -89,9 +98,10 @@ pub enum Command {
         /// each part's peak |B|.
         #[arg(long, value_name = "KEY")]
         plot: Vec<String>,
-        /// Worker threads (default: all cores).
+        /// Continue an interrupted sweep in DIR: points already finished (its
+        /// points.partial.jsonl) are not solved again.
         #[arg(long)]
-        threads: Option<usize>,
+        resume: bool,
         /// Print the sweep record (sweep.json) on standard output.
         #[arg(long)]
         json: bool,
@@ -272,6 +282,12 @@ fn study_help(e: &StudyError) -> &'static str {
         StudyError::Hidden(_) => {
             "move it, remove it, or list it after the entries that cover it (later entries are drawn over earlier ones)"
         }
+        StudyError::Limit(_) => {
+            "coarsen the mesh (larger mesh_size, a smaller domain) or raise the limit with --max-triangles / --max-memory"
+        }
+        StudyError::Physics(_) => {
+            "give every region a path to a fixed potential: a Dirichlet or open boundary, and conductors that touch no floating island"
+        }
         StudyError::Solve(_) => {
             "try a coarser mesh to see whether the model itself solves, and check materials and currents for extreme values"
         }
@@ -316,6 +332,12 @@ pub fn main() -> i32 {
         | Command::Compare { json, .. } => *json,
         _ => false,
     });
+    if let Err(code) =
+        crate::runtime::settings_from_cli(cli.threads, cli.max_triangles, cli.max_memory)
+    {
+        return code;
+    }
+    crate::interrupt::install();
     match execute(cli) {
         Ok(()) => 0,
         Err(code) => code,
@@ -386,6 +408,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             let t0 = std::time::Instant::now();
             let mesh = crate::study::mesh_model(&c, &model).map_err(|e| study_fail(&case, e))?;
             let secs = t0.elapsed().as_secs_f64();
+            let _writing = crate::interrupt::WriteGuard::new();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let path = out.join("mesh.vtu");
             output::write_mesh_vtu(&path, &c, &model, &mesh)
@@ -449,8 +472,11 @@ fn execute(cli: Cli) -> Result<(), i32> {
                 c.coils.len(),
                 crate::case::estimated_elements(&c)
             );
+            let spinner = crate::runtime::spinner("solving");
             let r = run(&c).map_err(|e| study_fail(&case, e))?;
+            drop(spinner);
             crate::note!("writing {}", out.display());
+            let _writing = crate::interrupt::WriteGuard::new();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let vtu = out.join("field.vtu");
             output::write_field_vtu(&vtu, &c, &r).map_err(|e| io_fail("field", &vtu, e))?;
@@ -478,8 +504,8 @@ fn execute(cli: Cli) -> Result<(), i32> {
             out,
             shard,
             plot,
-            threads,
             json: _,
+            resume,
         } => {
             let shard = match shard.as_deref().map(|s| (s, parse_shard(s))) {
                 None => None,
@@ -505,17 +531,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
                 );
                 return Err(2);
             }
-            let pool = rayon::ThreadPoolBuilder::new()
-                .num_threads(threads.unwrap_or(0))
-                .build()
-                .map_err(|e| {
-                    eprintln!("error: cannot start the worker threads: {e}");
-                    1
-                })?;
-            let t0 = std::time::Instant::now();
-            let rec = pool.install(|| crate::sweep::run_sweep(&raw, &src, &c, shard, true));
-            let secs = t0.elapsed().as_secs_f64();
-            finish_sweep(&out, &rec, &plot, secs)
+            crate::sweep::run_resumable(&out, &raw, &src, &c, shard, resume, &plot)
         }
         Command::Merge { dirs, out, json: _ } => {
             let mut recs = Vec::new();
@@ -672,7 +688,7 @@ fn manpage(out: Option<&Path>) -> Result<(), i32> {
 }
 
 /// Writes a sweep's files and prints what it did; exit 1 when any point failed.
-fn finish_sweep(
+pub(crate) fn finish_sweep(
     out: &Path,
     rec: &crate::sweep::SweepRecord,
     plot: &[String],

@@ -148,6 +148,8 @@ pub const KEYS: &[KeyDoc] = &[
       "accuracy = 0.005", "Target relative error of the figures: the mesh is refined where the estimated error is largest until the target or max_triangles is reached."),
     k("model.max_triangles", Type::Whole, "triangles", "2000000", "100 to 5e7",
       "max_triangles = 500000", "Element budget of the accuracy loop (triangles of the domain); the loop stops there and says so."),
+    choice("model.refinement", &["adaptive", "uniform"], "\"adaptive\"", "refinement = \"uniform\"",
+      "How the accuracy loop refines: adaptive (where the estimated error is largest) or uniform (every element, for comparison)."),
     // [parameters]
     k("parameters", Type::Table, "", "none", "", "[parameters]",
       "Named numbers that other values may use in expressions, and that [[sweep]] varies."),

@@ -41,6 +41,12 @@ pub enum StudyError {
     Hidden(String),
     #[error("solve failed: {0}")]
     Solve(#[from] SolveError),
+    /// Refused before meshing: over the triangle or memory limit ([`crate::limits`]).
+    #[error(transparent)]
+    Limit(#[from] crate::limits::TooLarge),
+    /// A sanity failure of the solve, named in the case's terms ([`crate::sanity`]).
+    #[error(transparent)]
+    Physics(#[from] crate::sanity::PhysicsError),
 }
 
 impl StudyError {
@@ -51,6 +57,8 @@ impl StudyError {
             StudyError::Hidden(_) | StudyError::Curve(..) => 2,
             StudyError::Newton(_) => 1,
             StudyError::Mesh(_) | StudyError::Solve(_) => 1,
+            StudyError::Physics(p) => p.exit_code(),
+            StudyError::Limit(_) => 2,
         }
     }
 }
@@ -389,6 +397,7 @@ pub fn mean_turn_length(case: &Case, window: &CoilWindow) -> f64 {
 
 /// Meshes a model, naming the entry when a mesh error concerns one.
 pub fn mesh_model(case: &Case, model: &Model) -> Result<Mesh, StudyError> {
+    crate::limits::check(case)?;
     fluxpick_mesh::generate(&model.spec).map_err(|e| match e {
         fluxpick_mesh::MeshError::EmptyRegion { region } => StudyError::Hidden(
             crate::output::region_names(case, model)
@@ -557,6 +566,7 @@ pub fn run(case: &Case) -> Result<Run, StudyError> {
         None => run_on(case, None),
         Some(target) => crate::adapt::run_adaptive(case, target),
     }
+    .map_err(|e| crate::sanity::name_regions(case, e))
 }
 
 /// One solve, on the case's mesh or (with `map`) on a mesh refined to the map's sizes.

@@ -192,8 +192,44 @@ pub fn in_shard(index: usize, shard: Option<(usize, usize)>) -> bool {
     }
 }
 
+/// Solves one point: resolve the case with the point's parameters, then run it.
+fn solve_point(raw: &RawCase, src: &SourceInfo, p: &Point) -> PointResult {
+    let outcome = resolve(raw, src, &p.parameters)
+        .map_err(|e| e.render_plain())
+        .and_then(|c| study::run(&c).map_err(|e| e.to_string()));
+    match outcome {
+        Ok(run) => PointResult {
+            index: p.index,
+            parameters: p.parameters.clone(),
+            figures: Some(flatten(&run.results)),
+            error: None,
+        },
+        Err(e) => PointResult {
+            index: p.index,
+            parameters: p.parameters.clone(),
+            figures: None,
+            error: Some(e),
+        },
+    }
+}
+
+fn progress_bar(progress: bool, len: usize) -> Option<indicatif::ProgressBar> {
+    if !(progress && std::io::stderr().is_terminal()) {
+        return None;
+    }
+    let b = indicatif::ProgressBar::new(len as u64);
+    b.set_style(
+        indicatif::ProgressStyle::with_template(
+            "{bar:40} {pos}/{len} points, {elapsed} elapsed, about {eta} to go",
+        )
+        .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+    );
+    Some(b)
+}
+
 /// Solves the points (of one shard, if given) in parallel. A point that fails is recorded
-/// with its error; the others go on. `progress` shows a bar on standard error.
+/// with its error; the others go on. `progress` shows a bar on standard error (on a
+/// terminal only).
 pub fn run_sweep(
     raw: &RawCase,
     src: &SourceInfo,
@@ -207,41 +243,15 @@ pub fn run_sweep(
         .into_iter()
         .filter(|p| in_shard(p.index, shard))
         .collect();
-    let bar = if progress && std::io::stderr().is_terminal() {
-        let b = indicatif::ProgressBar::new(todo.len() as u64);
-        b.set_style(
-            indicatif::ProgressStyle::with_template(
-                "{bar:40} {pos}/{len} points, {elapsed} elapsed, about {eta} to go",
-            )
-            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-        );
-        Some(b)
-    } else {
-        None
-    };
+    let bar = progress_bar(progress, todo.len());
     let mut results: Vec<PointResult> = todo
         .par_iter()
         .map(|p| {
-            let outcome = resolve(raw, src, &p.parameters)
-                .map_err(|e| e.render_plain())
-                .and_then(|c| study::run(&c).map_err(|e| e.to_string()));
+            let r = solve_point(raw, src, p);
             if let Some(b) = &bar {
                 b.inc(1);
             }
-            match outcome {
-                Ok(run) => PointResult {
-                    index: p.index,
-                    parameters: p.parameters.clone(),
-                    figures: Some(flatten(&run.results)),
-                    error: None,
-                },
-                Err(e) => PointResult {
-                    index: p.index,
-                    parameters: p.parameters.clone(),
-                    figures: None,
-                    error: Some(e),
-                },
-            }
+            r
         })
         .collect();
     if let Some(b) = bar {
@@ -254,6 +264,68 @@ pub fn run_sweep(
         total_points,
         points: results,
     }
+}
+
+/// The journal header of a sweep of `case` (text `src`), for [`crate::journal::Journal`].
+pub fn journal_header(
+    src: &SourceInfo,
+    case: &Case,
+    shard: Option<(usize, usize)>,
+) -> crate::journal::Header {
+    crate::journal::Header::new(
+        &src.text,
+        &case.title,
+        case.sweeps.iter().map(|s| s.parameter.clone()).collect(),
+        points(case).len(),
+        shard,
+    )
+}
+
+/// As [`run_sweep`], but each finished point is recorded in `journal` (appended and synced
+/// at once) and the points the journal already holds are skipped. When an interruption is
+/// asked for ([`crate::interrupt::cancelled`]) no new point starts; the points in flight
+/// finish and are recorded. Returns the record of every finished point (sorted by index)
+/// and whether it holds every point of the shard.
+pub fn run_sweep_journaled(
+    raw: &RawCase,
+    src: &SourceInfo,
+    case: &Case,
+    shard: Option<(usize, usize)>,
+    progress: bool,
+    journal: &crate::journal::Journal,
+) -> Result<(SweepRecord, bool), String> {
+    let done: std::collections::BTreeSet<usize> = journal.done_indices().into_iter().collect();
+    let todo: Vec<Point> = points(case)
+        .into_iter()
+        .filter(|p| in_shard(p.index, shard) && !done.contains(&p.index))
+        .collect();
+    let bar = progress_bar(progress, todo.len());
+    let failures: Vec<String> = todo
+        .par_iter()
+        .filter_map(|p| {
+            if crate::interrupt::cancelled() {
+                return None;
+            }
+            let r = solve_point(raw, src, p);
+            if let Some(b) = &bar {
+                b.inc(1);
+            }
+            journal.record(r).err()
+        })
+        .collect();
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
+    if let Some(e) = failures.into_iter().next() {
+        return Err(e);
+    }
+    let rec = journal.record_so_far();
+    let expected = points(case)
+        .iter()
+        .filter(|p| in_shard(p.index, shard))
+        .count();
+    let complete = rec.points.len() == expected;
+    Ok((rec, complete))
 }
 
 /// Joins the records of several shards of one sweep: points by index, each once.
@@ -500,4 +572,83 @@ pub fn write_outputs(
         }
     }
     Ok(written)
+}
+
+/// The `sweep` command: solves the points not yet in `DIR`'s journal (all of them without
+/// `resume`), recording each as it finishes; then writes the outputs and removes the
+/// journal. Interrupted (Ctrl-C, SIGTERM), it writes `sweep.csv` and `sweep.json` of the
+/// finished points, keeps the journal and exits with status 130; `--resume` continues.
+pub(crate) fn run_resumable(
+    out: &Path,
+    raw: &RawCase,
+    src: &SourceInfo,
+    case: &Case,
+    shard: Option<(usize, usize)>,
+    resume: bool,
+    plot: &[String],
+) -> Result<(), i32> {
+    use crate::journal::{Journal, Opened};
+    let (journal, opened) =
+        Journal::open(out, journal_header(src, case, shard), resume).map_err(|e| {
+            eprintln!("error: {e}");
+            2
+        })?;
+    match opened {
+        Opened::Fresh {
+            discarded_earlier: true,
+        } => eprintln!(
+            "note: the unfinished sweep in {} was discarded (use --resume to continue one)",
+            out.display()
+        ),
+        Opened::Fresh { .. } if resume => {
+            eprintln!(
+                "note: nothing to resume in {}: solving every point",
+                out.display()
+            )
+        }
+        Opened::Resumed { points, torn } => eprintln!(
+            "resuming: {points} points already done{}",
+            if torn > 0 {
+                format!(" ({torn} damaged journal lines dropped)")
+            } else {
+                String::new()
+            }
+        ),
+        Opened::Fresh { .. } => {}
+    }
+    crate::limits::set_concurrent_solves(rayon::current_num_threads());
+    crate::interrupt::set_graceful(true);
+    let t0 = std::time::Instant::now();
+    let (rec, complete) =
+        run_sweep_journaled(raw, src, case, shard, true, &journal).map_err(|e| {
+            eprintln!("error: {e}");
+            1
+        })?;
+    let secs = t0.elapsed().as_secs_f64();
+    if !complete {
+        write_outputs(out, &rec, &[], "case units").map_err(|e| {
+            eprintln!("error: {e}");
+            1
+        })?;
+        eprintln!(
+            "interrupted: {} points done, kept in {}/sweep.csv and sweep.json; continue with `fluxpick sweep {} --out {} --resume`",
+            rec.points.len(),
+            out.display(),
+            src.name,
+            out.display()
+        );
+        return Err(crate::interrupt::EXIT_INTERRUPTED);
+    }
+    let status = crate::cli::finish_sweep(out, &rec, plot, secs);
+    // the journal goes once sweep.json provably holds every point
+    let written = std::fs::read_to_string(out.join("sweep.json"))
+        .ok()
+        .and_then(|t| serde_json::from_str::<SweepRecord>(&t).ok())
+        .is_some_and(|r| r == rec);
+    if written {
+        if let Err(e) = journal.finish() {
+            eprintln!("warning: {e}");
+        }
+    }
+    status
 }

@@ -33,6 +33,23 @@ pub const MAX_SIZE_PASSES: usize = 40;
 const AREA_FRACTION: f64 = 0.3;
 /// Snap tolerance relative to the domain diagonal.
 pub(crate) const SNAP_REL: f64 = 1e-9;
+/// Largest ratio of the domain's long side to its short side. Quality triangles in a strip
+/// of aspect A need about A times as many triangles as its width allows, and past about
+/// 1/SNAP_REL the short sides vanish into the snap tolerance (a fuzzed 4.7e304 × 101
+/// rectangle refined for minutes). No pickup model comes near it.
+pub const MAX_DOMAIN_ASPECT: f64 = 1e5;
+/// Smallest domain size relative to its largest coordinate (see the check in
+/// `mesh_domain`).
+pub const MIN_DOMAIN_SIZE_REL: f64 = 1e-4;
+/// Vertices refinement may add, as a multiple of the estimate below (which already counts
+/// bounding boxes at 0.3 h² per vertex, a generous estimate), and at least
+/// [`MIN_VERTEX_BUDGET`]. A runaway refinement (small input angles, degenerate input) stops
+/// there with [`MeshError::RefinementIncomplete`] instead of exhausting memory: spade keeps
+/// roughly 200 bytes per vertex, so a budget of 20 times the estimate (what this was) let
+/// a large case reach several GB.
+const BUDGET_FACTOR: f64 = 4.0;
+/// Smallest vertex budget, whatever the estimate (about 200 MB of triangulation).
+const MIN_VERTEX_BUDGET: usize = 1_000_000;
 
 /// Result of the domain meshing before the image is added and nodes are renumbered.
 pub(crate) struct DomainMesh {
@@ -73,7 +90,11 @@ impl Pslg {
         let (i, j) = self.key(p);
         for di in -1..=1 {
             for dj in -1..=1 {
-                if let Some(v) = self.buckets.get(&(i + di, j + dj)) {
+                // keys saturate for points far outside the cells' range: no overflow
+                if let Some(v) = self
+                    .buckets
+                    .get(&(i.saturating_add(di), j.saturating_add(dj)))
+                {
                     for &k in v {
                         if dist2(self.pts[k as usize], p) <= self.tol2 {
                             return k;
@@ -340,6 +361,27 @@ pub(crate) fn mesh_domain(
     map: Option<&SizeMap>,
 ) -> Result<(Domain, Vec<RegionGeometry>, DomainMesh), MeshError> {
     let (domain, regions) = resolve_all_mapped(spec, map)?;
+    let (w, h) = (
+        domain.bbox.max[0] - domain.bbox.min[0],
+        domain.bbox.max[1] - domain.bbox.min[1],
+    );
+    if !(w.min(h) * MAX_DOMAIN_ASPECT >= w.max(h)) {
+        return Err(MeshError::BadDomain {
+            reason: "the domain is more than 1e5 times longer than it is wide",
+        });
+    }
+    let far = domain.bbox.min[0]
+        .abs()
+        .max(domain.bbox.min[1].abs())
+        .max(domain.bbox.max[0].abs())
+        .max(domain.bbox.max[1].abs());
+    // the snap tolerance (1e-9 of the size) must stay well above the rounding of the
+    // coordinates (1e-16 of their magnitude), and be a normal number
+    if !(w.min(h) >= MIN_DOMAIN_SIZE_REL * far && (SNAP_REL * domain.bbox.diag()).is_normal()) {
+        return Err(MeshError::BadDomain {
+            reason: "the domain is too small for its distance from the origin (under 1e-4 of it)",
+        });
+    }
     let bg = spec.background_max_edge;
     let size = SizeField::new(bg, spec.params.grading, &regions).with_map(map);
     let scale = domain.bbox.diag();
@@ -392,10 +434,17 @@ pub(crate) fn mesh_domain(
     let mut est = domain.bbox.diag().powi(2) / (AREA_FRACTION * bg * bg);
     for g in &regions {
         let b = g.bbox;
-        est += (b.max[0] - b.min[0]) * (b.max[1] - b.min[1])
-            / (AREA_FRACTION * g.max_edge * g.max_edge);
+        let (bw, bh) = (b.max[0] - b.min[0], b.max[1] - b.min[1]);
+        est += bw * bh / (AREA_FRACTION * g.max_edge * g.max_edge);
+        if let Some(s) = g.skin_edge {
+            // a graded band along the outline: about perimeter / s vertices per ring,
+            // rings growing at the grading rate (Σ 1/1.3^k ≈ 4.3), counted as 5
+            est += 2.0 * (bw + bh) * 5.0 / s;
+        }
     }
-    let budget = ((est * 20.0).min(4e9) as usize).max(1_000_000);
+    let budget = ((est * BUDGET_FACTOR).min(4e9) as usize).max(MIN_VERTEX_BUDGET);
+    // the budget is for the whole of refinement, shared by every pass
+    let left = |cdt: &Cdt| (n_input + budget).saturating_sub(cdt.num_vertices());
 
     // 4: refinement
     let res =
@@ -437,12 +486,18 @@ pub(crate) fn mesh_domain(
                 vertices: cdt.num_vertices(),
             });
         }
+        if bad.len() >= left(&cdt) {
+            return Err(MeshError::RefinementIncomplete {
+                stage: "size pass",
+                vertices: cdt.num_vertices(),
+            });
+        }
         bad.sort_by_key(|p| morton(*p, &domain.bbox));
         for p in bad {
             cdt.insert(Point2::new(p[0], p[1]))
                 .map_err(|_| MeshError::Insertion)?;
         }
-        let res = cdt.refine(refine_params(spec, budget));
+        let res = cdt.refine(refine_params(spec, left(&cdt)));
         if !res.refinement_complete {
             return Err(MeshError::RefinementIncomplete {
                 stage: "size pass",

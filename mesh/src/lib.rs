@@ -50,7 +50,7 @@ pub mod stats;
 mod tag;
 
 pub use assemble::{generate, generate_refined, renumber_hilbert};
-pub use build::MAX_SIZE_PASSES;
+pub use build::{MAX_DOMAIN_ASPECT, MAX_SIZE_PASSES};
 pub use check::expected_region_areas;
 pub use error::{InvariantViolation, MeshError};
 pub use geom::{polygon_area, triangle_area, triangle_min_angle_deg};

@@ -239,6 +239,7 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
     if d.n_dofs == 0 {
         return Err(SolveError::NoUnknowns);
     }
+    crate::sanity::check_reference(&d)?;
     let image = d.exterior.as_ref().map(|e| e.region);
     let mut nu = Vec::with_capacity(d.region_count);
     let mut sigma = vec![0.0; d.region_count];

@@ -55,6 +55,7 @@ pub mod linsolve;
 pub mod nonlinear;
 pub mod problem;
 pub mod quadrature;
+pub mod sanity;
 pub mod statics;
 
 pub use discretisation::{Discretisation, Order};
@@ -78,6 +79,15 @@ pub enum Formulation {
 pub enum SolveError {
     #[error("the system is singular: some region has no reference potential (a floating region, or no boundary condition holds the potential)")]
     Singular,
+    /// Found before factorising ([`sanity::check_reference`]): no node of a connected piece
+    /// of the mesh is held, so the potential there is defined up to a constant. `regions`
+    /// are the region ids of the piece; `whole_domain` when it is the whole mesh (no
+    /// boundary condition holds the potential anywhere).
+    #[error("the system is singular: no boundary condition holds the potential in region(s) {regions:?}{}", if *whole_domain { " (the whole domain)" } else { " (a floating piece)" })]
+    NoReference {
+        regions: Vec<u32>,
+        whole_domain: bool,
+    },
     #[error("sparse factorisation failed: {0}")]
     Factorisation(String),
     #[error("the linear solve did not reach its tolerance: relative residual {residual:.3e} > {tolerance:.1e}")]

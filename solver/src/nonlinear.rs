@@ -353,6 +353,8 @@ fn solve_with<const N: usize, B: Basis<N>>(
         res = trial;
         iterations += 1;
         history.push(norm(&res) / scale);
+        // NaN or infinite unknowns stop the run, naming the region where they appeared
+        crate::sanity::check_finite_dofs(&d, &x)?;
         if !x.iter().all(|v| v.is_finite()) {
             return Err(NonlinearError::NotConverged {
                 iterations,

@@ -105,6 +105,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     if d.n_dofs == 0 {
         return Err(SolveError::NoUnknowns);
     }
+    crate::sanity::check_reference(&d)?;
     let nu: Vec<Reluctivity> = (0..d.region_count)
         .map(|r| match &d.exterior {
             Some(e) if e.region as usize == r => Ok(Reluctivity::KelvinImage {

@@ -32,6 +32,7 @@ use std::path::Path;
 pub use error::{CaseError, CaseErrorKind};
 pub use model::*;
 pub use raw::RawCase;
+pub(crate) use summary::{element_shares, Share};
 pub use summary::{estimated_elements, summary};
 
 /// The name and text of a case file, for error messages.
