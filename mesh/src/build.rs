@@ -365,7 +365,8 @@ pub(crate) fn mesh_domain(
         domain.bbox.max[0] - domain.bbox.min[0],
         domain.bbox.max[1] - domain.bbox.min[1],
     );
-    if !(w.min(h) * MAX_DOMAIN_ASPECT >= w.max(h)) {
+    let proportioned = w.min(h) * MAX_DOMAIN_ASPECT >= w.max(h); // false for NaN too
+    if !proportioned {
         return Err(MeshError::BadDomain {
             reason: "the domain is more than 1e5 times longer than it is wide",
         });

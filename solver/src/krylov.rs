@@ -52,6 +52,10 @@ struct System {
     bnorm: f64,
     total: usize,
     rel: f64,
+    /// True relative residual at the last restart.
+    restart_rel: f64,
+    /// The last cycle ended because its own residual estimate met the tolerance.
+    estimate_met: bool,
     done: bool,
     /// Arnoldi basis V, preconditioned basis Z, Hessenberg columns (rotated), Givens
     /// rotations and the rotated right-hand side of the current cycle; empty between cycles.
@@ -89,6 +93,12 @@ impl System {
     }
 }
 
+/// After a cycle whose residual estimate met the tolerance, the next restart must find the
+/// true residual at most this fraction of the one before, or the solve stops there (the
+/// true residual has reached the rounding floor of a large system; the caller's own
+/// residual check then decides).
+const STAGNATION: f64 = 0.5;
+
 /// GMRES for several right-hand sides of the same matrix, run in lockstep so that each
 /// iteration applies the preconditioner to all the systems' vectors at once (`precond`
 /// receives them together: a direct solver sweeps its factor once for the whole block).
@@ -112,6 +122,8 @@ pub fn gmres_batch(
                 bnorm,
                 total: 0,
                 rel: if bnorm == 0.0 { 0.0 } else { 1.0 },
+                restart_rel: 1.0,
+                estimate_met: false,
                 done: bnorm == 0.0,
                 v: Vec::new(),
                 z: Vec::new(),
@@ -132,7 +144,11 @@ pub fn gmres_batch(
                 let r: Vec<c64> = b.iter().zip(&ax).map(|(b, a)| b - a).collect();
                 let beta = norm(&r);
                 s.rel = beta / s.bnorm;
-                if s.rel <= tol || s.total >= max_iter {
+                // rounding floor: the estimate met the tolerance but the true residual did
+                // not even halve since the last restart; more cycles cannot help
+                let stalled = s.estimate_met && s.rel > STAGNATION * s.restart_rel;
+                s.restart_rel = s.rel;
+                if s.rel <= tol || s.total >= max_iter || stalled {
                     s.done = true;
                     return;
                 }
@@ -196,6 +212,7 @@ pub fn gmres_batch(
                 s.h.push(col);
                 s.total += 1;
                 s.rel = s.g[k + 1].norm() / s.bnorm;
+                s.estimate_met = s.rel <= tol;
                 if s.rel <= tol || hn == 0.0 || s.total >= max_iter || k + 1 == restart {
                     s.finish_cycle();
                 } else {

@@ -203,6 +203,8 @@ fn solve_with<const N: usize, B: Basis<N>>(
         }
         rhs.push(f);
     }
+    // the element matrices are done with: free them before the factorisation
+    drop(loc);
     for src in sources {
         let mut f = vec![0.0; d.n_dofs];
         for c in 0..d.n_cells() {
