@@ -34,6 +34,10 @@ pub struct Cli {
     /// Memory a solve may plan to use, in GB (default: 80 % of the memory available).
     #[arg(long, global = true, value_name = "GB")]
     pub max_memory: Option<f64>,
+    /// Refine the mesh until every figure's estimated relative error is below X (e.g.
+    /// 0.005), for every solve of the command (overrides model.accuracy).
+    #[arg(long, global = true, value_name = "X")]
+    pub accuracy: Option<f64>,
 }
 
 /// The end of `fluxpick --help`: a first session.
@@ -338,6 +342,13 @@ pub fn main() -> i32 {
         return code;
     }
     crate::interrupt::install();
+    if let Some(a) = cli.accuracy {
+        if !(1e-6..=0.5).contains(&a) {
+            eprintln!("error: --accuracy {a}: the target is a relative error between 1e-6 and 0.5\n  help: write e.g. --accuracy 0.005 for 0.5 %");
+            return 2;
+        }
+        crate::study::set_accuracy(a);
+    }
     match execute(cli) {
         Ok(()) => 0,
         Err(code) => code,

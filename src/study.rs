@@ -559,10 +559,18 @@ fn total_phasor(
     combine(&parts, like, nk)
 }
 
+/// The command line's `--accuracy`, which overrides `model.accuracy` for every solve.
+static ACCURACY: std::sync::OnceLock<f64> = std::sync::OnceLock::new();
+
+/// Sets the accuracy target of every later [`run`] (the `--accuracy` option).
+pub fn set_accuracy(target: f64) {
+    let _ = ACCURACY.set(target);
+}
+
 /// Solves a case: on one mesh, or with `model.accuracy` set, adaptively
 /// ([`crate::adapt::run_adaptive`]).
 pub fn run(case: &Case) -> Result<Run, StudyError> {
-    match case.accuracy {
+    match ACCURACY.get().copied().or(case.accuracy) {
         None => run_on(case, None),
         Some(target) => crate::adapt::run_adaptive(case, target),
     }

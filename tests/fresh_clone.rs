@@ -3,8 +3,9 @@
 //! The test clones its own checkout (`git clone`, so only committed files come along) into a
 //! temporary folder and runs README.md's fenced `sh` blocks there, in order. Two kinds of
 //! block are not run, and the test says so: the test command (`cargo test`, which is what is
-//! running now) and the cluster job script (it starts with `#!/bin/sh` and `#SBATCH` lines and
-//! needs a Slurm scheduler).
+//! running now), the cluster job script (it starts with `#!/bin/sh` and `#SBATCH` lines and
+//! needs a Slurm scheduler) and the optional fuzzing commands (`cargo +nightly fuzz`, a nightly
+//! toolchain and ten minutes per target).
 //!
 //! To stay fast the build uses its own target folder seeded with hard links to this build's
 //! compiled crates, and the clone's files are dated before them, so that cargo reuses them
@@ -69,7 +70,9 @@ fn set_mtimes(dir: &Path, t: std::time::SystemTime) {
 
 /// Whether README's block is one this test runs (see the module comment).
 fn runnable(block: &str) -> bool {
-    !block.contains("cargo test") && !block.starts_with("#!")
+    !block.contains("cargo test")
+        && !block.starts_with("#!")
+        && !block.contains("cargo +nightly fuzz")
 }
 
 #[test]
@@ -111,7 +114,7 @@ fn readme_commands_work_in_a_fresh_clone() {
     let run: Vec<&String> = blocks.iter().filter(|b| runnable(b)).collect();
     let skipped = blocks.len() - run.len();
     eprintln!(
-        "README has {} sh blocks; running {}, skipping {skipped} (the test command and the cluster script)",
+        "README has {} sh blocks; running {}, skipping {skipped} (the test command, the cluster script, fuzzing)",
         blocks.len(),
         run.len()
     );
@@ -119,7 +122,7 @@ fn readme_commands_work_in_a_fresh_clone() {
         run.iter().any(|b| b.contains("cargo run")),
         "README should show how to build and run"
     );
-    assert!(skipped <= 2, "README has blocks this test does not run");
+    assert!(skipped <= 3, "README has blocks this test does not run");
     for block in run {
         let o = Command::new("bash")
             .args(["-euo", "pipefail", "-c", block])
