@@ -29,6 +29,9 @@ use crate::study::{run_on, Results, Run, StudyError};
 /// Most passes of one adaptive solve.
 pub const MAX_PASSES: usize = 12;
 
+/// Fewest passes: the estimates that stop the loop come from the change between passes.
+pub const MIN_PASSES: usize = 2;
+
 /// Fraction of the total estimated error that the marked cells carry (Dörfler's θ).
 const BULK: f64 = 0.5;
 
@@ -56,6 +59,11 @@ pub struct Pass {
     /// The deciding figures by dotted key, and their estimated relative errors.
     pub figures: BTreeMap<String, f64>,
     pub estimates: BTreeMap<String, f64>,
+    /// How the estimates were made: "recovery" (from this pass's field alone) or
+    /// "extrapolation" (from the change since the previous pass).
+    pub method: String,
+    /// The recovered relative error energy of the pass (sum of the cell indicators).
+    pub error_energy: f64,
     /// The largest estimate.
     pub worst: f64,
 }
@@ -142,19 +150,82 @@ fn size_map(run: &Run, marked: &[usize]) -> SizeMap {
     )
 }
 
-/// Solves `case` adaptively to the relative accuracy `target`.
+/// Relative error estimates of the controlled figures of pass k from the change since pass
+/// k − 1 (Richardson-type, for k ≥ 2): if each pass shrinks a figure's error by the same
+/// factor ρ, e_k = ρ/(1 − ρ)·(F_{k−1} − F_k). ρ is taken as the larger of the ratio of the
+/// recovered relative error energies of the two passes (the figures here converge like the
+/// error energy: DEVELOPERS.md, "Error estimates") and, from the third pass on, the ratio of
+/// the figure's last two changes. Unlike the recovery estimate this also sees the error of
+/// the geometry (curves are polygonised finer as the mesh refines). None when the error
+/// energy did not shrink enough to tell (ρ ≥ 0.9).
+fn extrapolated(passes: &[Pass], now: &Pass) -> Option<BTreeMap<String, f64>> {
+    let prev = passes.last()?;
+    let rho_energy = now.error_energy / prev.error_energy;
+    if !(rho_energy.is_finite() && rho_energy > 0.0 && rho_energy < 0.9) {
+        return None;
+    }
+    let before = passes.len().checked_sub(2).map(|k| &passes[k]);
+    Some(
+        now.figures
+            .iter()
+            .filter_map(|(k, &f)| {
+                let f1 = *prev.figures.get(k)?;
+                let change = (f - f1).abs();
+                let rho_figure = before
+                    .and_then(|b| b.figures.get(k))
+                    .map(|&f0| change / (f1 - f0).abs())
+                    .filter(|r| r.is_finite())
+                    .unwrap_or(0.0);
+                let rho = rho_energy.max(rho_figure).min(0.9);
+                (f != 0.0).then(|| (k.clone(), change * rho / (1.0 - rho) / f.abs()))
+            })
+            .collect(),
+    )
+}
+
+/// Writes the loop's estimates into the `_err` siblings of the controlled figures and of
+/// the figures derived from them.
+fn apply(r: &mut Results, est: &BTreeMap<String, f64>) {
+    for (name, c) in r.coils.iter_mut() {
+        if let Some(&e) = est.get(&format!("coils.{name}.flux_linkage_wb")) {
+            c.flux_linkage_wb_err = Some(e);
+            c.emf_v_err = c.emf_v_err.map(|_| e);
+            c.matched_power_w_err = c.matched_power_w_err.map(|_| 2.0 * e);
+            c.equivalent_area_m2_err = c.equivalent_area_m2_err.map(|_| e);
+        }
+        if let Some(&e) = est.get(&format!("coils.{name}.inductance_h")) {
+            c.inductance_h_err = Some(e);
+            c.q_err = c.q_err.map(|_| e);
+            c.tuning_capacitance_f_err = c.tuning_capacitance_f_err.map(|_| e);
+        }
+    }
+    for (name, p) in r.parts.iter_mut() {
+        if let Some(&e) = est.get(&format!("parts.{name}.b_mean_t")) {
+            p.b_mean_t_err = Some(e);
+        }
+        if let Some(&e) = est.get(&format!("parts.{name}.loss_w")) {
+            p.loss_w_err = Some(e);
+        }
+    }
+    for (name, c) in r.conductors.iter_mut() {
+        if let Some(&e) = est.get(&format!("conductors.{name}.loss_w")) {
+            c.loss_w_err = Some(e);
+            c.resistance_ohm_err = c.resistance_ohm_err.map(|_| e);
+            c.ac_dc_ratio_err = c.ac_dc_ratio_err.map(|_| e);
+        }
+    }
+}
+
+/// Solves `case` adaptively to the relative accuracy `target` (or, with
+/// `model.refinement = "uniform"`, by halving every cell each pass, for comparison).
 pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
     let mut map: Option<SizeMap> = None;
-    let mut passes = Vec::new();
+    let mut passes: Vec<Pass> = Vec::new();
     let (mut run, stopped) = loop {
         let t0 = Instant::now();
-        let run = run_on(case, map.as_ref())?;
+        let mut run = run_on(case, map.as_ref())?;
         let figs = controlled(&run.results);
-        let worst = figs
-            .iter()
-            .filter_map(|f| f.2)
-            .fold(0.0f64, |a, b| a.max(b));
-        passes.push(Pass {
+        let mut pass = Pass {
             triangles: run.results.mesh.triangles,
             unknowns: run.results.mesh.unknowns,
             seconds: t0.elapsed().as_secs_f64(),
@@ -163,20 +234,38 @@ pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
                 .iter()
                 .filter_map(|f| f.2.map(|e| (f.0.clone(), e)))
                 .collect(),
-            worst,
-        });
-        if worst <= target {
+            method: "recovery".into(),
+            error_energy: run.error_indicator.iter().sum(),
+            worst: 0.0,
+        };
+        if let Some(est) = extrapolated(&passes, &pass) {
+            pass.estimates = est;
+            pass.method = "extrapolation".into();
+            apply(&mut run.results, &pass.estimates);
+        }
+        pass.worst = pass.estimates.values().fold(0.0f64, |a, &b| a.max(b));
+        let worst = pass.worst;
+        let triangles = pass.triangles;
+        passes.push(pass);
+        // the first pass's recovery estimate only guides the marking: it does not see the
+        // geometry error and can be optimistic for region means (DEVELOPERS.md)
+        if worst <= target && passes.len() >= MIN_PASSES {
             break (run, "target reached");
         }
         if passes.len() >= MAX_PASSES {
             break (run, "pass limit");
         }
         let image = run.mesh.exterior.as_ref().map(|e| e.region);
-        let marked = mark(&run.error_indicator, |c| {
-            Some(run.mesh.triangle_region[c]) != image
-        });
+        let physical = |c: usize| Some(run.mesh.triangle_region[c]) != image;
+        let marked = if case.uniform_refinement {
+            (0..run.mesh.triangles.len())
+                .filter(|&c| physical(c))
+                .collect()
+        } else {
+            mark(&run.error_indicator, physical)
+        };
         // a halved cell becomes about four
-        let next = run.results.mesh.triangles + 3 * marked.len();
+        let next = triangles + 3 * marked.len();
         if marked.is_empty() || next > case.max_triangles {
             break (run, "element budget");
         }

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use clap::{Parser, Subcommand};
+use clap::{CommandFactory, Parser, Subcommand};
 
 use crate::case::{load_case, summary as case_summary, Case};
 use crate::output;
@@ -13,9 +13,16 @@ use crate::study::{run, StudyError};
 #[command(
     name = "fluxpick",
     version,
-    about = "Field solver for inductive pickups beside power conductors"
+    about = "Field solver for inductive pickups beside power conductors",
+    after_help = AFTER_HELP
 )]
 pub struct Cli {
+    /// Print only errors (and the JSON asked for with --json).
+    #[arg(long, short = 'q', global = true, conflicts_with = "verbose")]
+    pub quiet: bool,
+    /// Print more: what each stage is doing, on standard error.
+    #[arg(long, short = 'v', global = true)]
+    pub verbose: bool,
     #[command(subcommand)]
     pub command: Command,
     /// Worker threads (default: all cores). Results do not depend on it.
@@ -29,12 +36,26 @@ pub struct Cli {
     pub max_memory: Option<f64>,
 }
 
+/// The end of `fluxpick --help`: a first session.
+const AFTER_HELP: &str = "\
+Getting started:
+  fluxpick new rod --out rod.toml          # a commented starter case (also: feeder, three-phase, coaxial)
+  fluxpick check rod.toml                  # validate it, with warnings for suspicious input
+  fluxpick solve rod.toml --out out/rod --plot
+  fluxpick explain fill_factor             # what a case-file key means
+Guide: docs/guide.md; every case-file key: docs/case-reference.md";
+
 #[derive(Subcommand, Debug)]
 pub enum Command {
     /// Validate a case file and print what it describes.
     ///
     /// Example: fluxpick check cases/rod-uniform-field.toml
-    Check { case: PathBuf },
+    Check {
+        case: PathBuf,
+        /// Print the summary, warnings and any error as JSON on standard output.
+        #[arg(long)]
+        json: bool,
+    },
     /// Mesh a case and write DIR/mesh.vtu with statistics.
     ///
     /// Example: fluxpick mesh cases/rod-uniform-field.toml --out out/rod
@@ -42,6 +63,9 @@ pub enum Command {
         case: PathBuf,
         #[arg(long, value_name = "DIR")]
         out: PathBuf,
+        /// Print the mesh statistics as JSON on standard output.
+        #[arg(long)]
+        json: bool,
     },
     /// Solve a case: DIR/results.json, DIR/field.vtu and a summary.
     ///
@@ -78,6 +102,9 @@ pub enum Command {
         /// points.partial.jsonl) are not solved again.
         #[arg(long)]
         resume: bool,
+        /// Print the sweep record (sweep.json) on standard output.
+        #[arg(long)]
+        json: bool,
     },
     /// Join the sweep.json files of several shards into one sweep (csv, json, plots).
     ///
@@ -87,6 +114,9 @@ pub enum Command {
         dirs: Vec<PathBuf>,
         #[arg(long, value_name = "DIR")]
         out: PathBuf,
+        /// Print the merged record (sweep.json) on standard output.
+        #[arg(long)]
+        json: bool,
     },
     /// Placement map: a pickup (axisymmetric case in a uniform axial field) placed at every
     /// point of a probe of a planar survey case (conductors, steel): EMF and matched power
@@ -108,6 +138,9 @@ pub enum Command {
         /// How many best positions to list.
         #[arg(long, default_value_t = 5)]
         best: usize,
+        /// Print the map record (map.json) on standard output.
+        #[arg(long)]
+        json: bool,
     },
     /// Solve several cases (e.g. core variants) and rank them side by side.
     ///
@@ -121,6 +154,53 @@ pub enum Command {
         /// Also write DIR/compare.md and DIR/compare.csv.
         #[arg(long, value_name = "DIR")]
         out: Option<PathBuf>,
+        /// Print the ranked rows as JSON on standard output.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Write a commented starter case for a common job; it runs as written and its comments
+    /// say what to change.
+    ///
+    /// Kinds: rod (a ferrite-rod pickup characterised in a uniform field), feeder (a pickup
+    /// beside a go-and-return feeder), three-phase (a pickup beside a three-phase busbar set
+    /// near a steel wall), coaxial (two coaxial coils for 50/60 Hz power transfer).
+    ///
+    /// Example: fluxpick new rod --out rod.toml && fluxpick solve rod.toml --out out/rod
+    New {
+        /// What to model.
+        #[arg(value_parser = clap::builder::PossibleValuesParser::new(
+            crate::starters::STARTERS.iter().map(|s| s.kind)))]
+        kind: String,
+        /// Where to write the case (default: KIND.toml here; `-` for standard output).
+        #[arg(long, value_name = "FILE")]
+        out: Option<PathBuf>,
+        /// Replace FILE if it exists.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Explain a case-file key: type, unit, default, allowed values, an example and what it
+    /// means (the same entry as docs/case-reference.md). Without KEY, list every key.
+    ///
+    /// Example: fluxpick explain model.accuracy   (also: explain mesh_size, explain "[[coil]]")
+    Explain {
+        /// A dotted key (`part.mesh_size`, `materials.ferrite.mu_r`) or a bare name.
+        key: Option<String>,
+    },
+    /// Print a shell completion script.
+    ///
+    /// Example: fluxpick completions bash > ~/.local/share/bash-completion/completions/fluxpick
+    Completions {
+        /// The shell to complete in.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff); with --out DIR, write DIR/fluxpick.1 and one page per
+    /// command.
+    ///
+    /// Example: fluxpick manpage > fluxpick.1 && man ./fluxpick.1
+    Manpage {
+        /// Write the pages into this folder instead of printing the main one.
+        #[arg(long, value_name = "DIR")]
+        out: Option<PathBuf>,
     },
 }
 
@@ -131,10 +211,87 @@ fn parse_shard(s: &str) -> Option<(usize, usize)> {
 }
 
 fn load(path: &Path) -> Result<Case, i32> {
+    crate::note!("reading {}", path.display());
     load_case(path).map_err(|e| {
+        if crate::ui::json() {
+            print_json(&serde_json::json!({
+                "file": path.display().to_string(),
+                "ok": false,
+                "error": case_error_json(&e),
+            }));
+        }
         eprintln!("{:?}", miette::Report::new(e));
         2
     })
+}
+
+/// A case error as JSON: where it is, what is wrong and how to fix it.
+fn case_error_json(e: &crate::case::CaseError) -> serde_json::Value {
+    let (line, column) = e
+        .line_col()
+        .map_or((None, None), |(l, c)| (Some(l), Some(c)));
+    serde_json::json!({
+        "kind": format!("{:?}", e.kind),
+        "file": e.file_name(),
+        "line": line,
+        "column": column,
+        "key": e.key,
+        "message": e.message,
+        "help": e.help_text(),
+    })
+}
+
+fn print_json(v: &impl serde::Serialize) {
+    println!("{}", serde_json::to_string_pretty(v).unwrap_or_default());
+}
+
+/// Prints the warnings of `crate::lint` for a case (standard error, not with --quiet).
+fn print_lint(path: &Path, c: &Case) -> Vec<crate::lint::Warning> {
+    let warnings = crate::lint::lint(c);
+    for w in &warnings {
+        crate::ui::warn(&path.display().to_string(), w);
+    }
+    warnings
+}
+
+/// How to get past a failed study, for the line after the error.
+fn study_help(e: &StudyError) -> &'static str {
+    use crate::build::BuildError as B;
+    match e {
+        StudyError::Build(B::OpposedSymmetryEdges(..)) => {
+            "keep the symmetry [[edge]] on one side only and leave the opposite side open"
+        }
+        StudyError::Build(B::AxisymmetricDomainOffAxis(_)) => {
+            "start the domain at the axis: rect = { min = [0, z0], max = [r1, z1] }"
+        }
+        StudyError::Build(B::DomainShape) => {
+            "give [domain] a rect = { min = [..], max = [..] } or a circle = { center = [..], radius = R }"
+        }
+        StudyError::Build(B::UnknownMaterial(_)) => {
+            "define the material in a [materials.NAME] table, or use air, copper or aluminium"
+        }
+        StudyError::Curve(..) => {
+            "check the material's B-H points: they start at [0, 0] and rise in both H and B"
+        }
+        StudyError::Newton(_) => {
+            "check the model at lower currents or a weaker field, refine the mesh in the saturating parts, or give a smoother B-H curve"
+        }
+        StudyError::Mesh(_) => {
+            "look for shapes that nearly touch or mesh sizes far smaller than the domain; `fluxpick mesh CASE --out DIR` writes the mesh to look at"
+        }
+        StudyError::Hidden(_) => {
+            "move it, remove it, or list it after the entries that cover it (later entries are drawn over earlier ones)"
+        }
+        StudyError::Limit(_) => {
+            "coarsen the mesh (larger mesh_size, a smaller domain) or raise the limit with --max-triangles / --max-memory"
+        }
+        StudyError::Physics(_) => {
+            "give every region a path to a fixed potential: a Dirichlet or open boundary, and conductors that touch no floating island"
+        }
+        StudyError::Solve(_) => {
+            "try a coarser mesh to see whether the model itself solves, and check materials and currents for extreme values"
+        }
+    }
 }
 
 fn io_fail(what: &str, path: &Path, e: std::io::Error) -> i32 {
@@ -143,12 +300,13 @@ fn io_fail(what: &str, path: &Path, e: std::io::Error) -> i32 {
 }
 
 fn study_fail(case: &Path, e: StudyError) -> i32 {
-    eprintln!("error: {}: {e}", case.display());
+    eprintln!("error: {}: {e}\n  help: {}", case.display(), study_help(&e));
     e.exit_code()
 }
 
 /// Runs the CLI on the process arguments; returns the exit status.
 pub fn main() -> i32 {
+    crate::ui::init_error_rendering();
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
@@ -157,6 +315,23 @@ pub fn main() -> i32 {
             return code;
         }
     };
+    crate::ui::set_level(if cli.quiet {
+        crate::ui::Level::Quiet
+    } else if cli.verbose {
+        crate::ui::Level::Verbose
+    } else {
+        crate::ui::Level::Normal
+    });
+    crate::ui::set_json(match &cli.command {
+        Command::Check { json, .. }
+        | Command::Mesh { json, .. }
+        | Command::Solve { json, .. }
+        | Command::Sweep { json, .. }
+        | Command::Merge { json, .. }
+        | Command::Map { json, .. }
+        | Command::Compare { json, .. } => *json,
+        _ => false,
+    });
     if let Err(code) =
         crate::runtime::settings_from_cli(cli.threads, cli.max_triangles, cli.max_memory)
     {
@@ -171,11 +346,11 @@ pub fn main() -> i32 {
 
 fn execute(cli: Cli) -> Result<(), i32> {
     match cli.command {
-        Command::Check { case } => {
+        Command::Check { case, json } => {
             let c = load(&case)?;
             let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
-            print!("{}", case_summary(&c));
-            println!(
+            crate::ui::out(&case_summary(&c));
+            crate::say!(
                 "open boundary: {}",
                 if model.spec.exterior_image {
                     "exterior image (Kelvin inversion)"
@@ -183,9 +358,51 @@ fn execute(cli: Cli) -> Result<(), i32> {
                     "no"
                 }
             );
+            if crate::ui::verbose() {
+                for (k, v) in &c.parameters {
+                    crate::note!("parameter {k} = {v}");
+                }
+            }
+            let warnings = print_lint(&case, &c);
+            // Sweep values that would not resolve on their own (warned, not fatal: a sweep
+            // may run past where a winding fits).
+            let mut sweep_problems = Vec::new();
+            if !c.sweeps.is_empty() {
+                if let Ok((raw, text)) = crate::case::load(&case) {
+                    let src = crate::case::SourceInfo::new(case.display().to_string(), text);
+                    for e in crate::case::check_sweep_points(&raw, &src, &c) {
+                        crate::ui::warn(
+                            &case.display().to_string(),
+                            &crate::lint::Warning {
+                                key: e.key.clone(),
+                                message: e.message.clone(),
+                                help: e.help_text().unwrap_or("").to_string(),
+                            },
+                        );
+                        sweep_problems.push(case_error_json(&e));
+                    }
+                }
+            }
+            if json {
+                print_json(&serde_json::json!({
+                    "file": case.display().to_string(),
+                    "ok": true,
+                    "title": c.title,
+                    "symmetry": format!("{:?}", c.symmetry).to_lowercase(),
+                    "frequency_hz": c.frequency,
+                    "parts": c.parts.iter().map(|p| &p.name).collect::<Vec<_>>(),
+                    "conductors": c.conductors.iter().map(|p| &p.name).collect::<Vec<_>>(),
+                    "coils": c.coils.iter().map(|p| &p.name).collect::<Vec<_>>(),
+                    "sweep_points": c.sweeps.iter().map(|s| s.values.len()).product::<usize>(),
+                    "estimated_triangles": crate::case::estimated_elements(&c).round(),
+                    "open_boundary": model.spec.exterior_image,
+                    "warnings": warnings,
+                    "sweep_point_problems": sweep_problems,
+                }));
+            }
             Ok(())
         }
-        Command::Mesh { case, out } => {
+        Command::Mesh { case, out, json } => {
             let c = load(&case)?;
             let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
             let t0 = std::time::Instant::now();
@@ -198,21 +415,46 @@ fn execute(cli: Cli) -> Result<(), i32> {
                 .map_err(|e| io_fail("mesh", &path, e))?;
             let stats = mesh.stats();
             let names = output::region_names(&c, &model);
-            println!(
+            if json {
+                print_json(&serde_json::json!({
+                    "file": case.display().to_string(),
+                    "mesh_vtu": path.display().to_string(),
+                    "seconds": secs,
+                    "nodes": stats.nodes,
+                    "triangles": stats.triangles,
+                    "min_angle_deg": stats.min_angle_deg,
+                    "mean_min_angle_deg": stats.mean_min_angle_deg,
+                    "regions": names.iter().zip(&stats.regions).map(|(n, r)| serde_json::json!({
+                        "name": n,
+                        "triangles": r.triangles,
+                        "area_m2": r.area,
+                        "max_edge_m": r.max_edge,
+                        "min_angle_deg": r.min_angle_deg,
+                    })).collect::<Vec<_>>(),
+                }));
+            }
+            crate::say!(
                 "{} nodes, {} triangles in {:.2} s; smallest angle {:.1}°, mean of the smallest angles {:.1}°",
                 stats.nodes, stats.triangles, secs, stats.min_angle_deg, stats.mean_min_angle_deg
             );
-            println!(
+            crate::say!(
                 "{:<20} {:>10} {:>14} {:>12} {:>10}",
-                "region", "triangles", "area (m²)", "max edge (m)", "min angle"
+                "region",
+                "triangles",
+                "area (m²)",
+                "max edge (m)",
+                "min angle"
             );
             for (name, r) in names.iter().zip(&stats.regions) {
-                println!(
+                crate::say!(
                     "{name:<20} {:>10} {:>14.6e} {:>12.4e} {:>9.1}°",
-                    r.triangles, r.area, r.max_edge, r.min_angle_deg
+                    r.triangles,
+                    r.area,
+                    r.max_edge,
+                    r.min_angle_deg
                 );
             }
-            println!("wrote {}", path.display());
+            crate::say!("wrote {}", path.display());
             Ok(())
         }
         Command::Solve {
@@ -222,9 +464,18 @@ fn execute(cli: Cli) -> Result<(), i32> {
             plot,
         } => {
             let c = load(&case)?;
+            print_lint(&case, &c);
+            crate::note!(
+                "solving: {} parts, {} conductors, {} coils, about {:.0} triangles",
+                c.parts.len(),
+                c.conductors.len(),
+                c.coils.len(),
+                crate::case::estimated_elements(&c)
+            );
             let spinner = crate::runtime::spinner("solving");
             let r = run(&c).map_err(|e| study_fail(&case, e))?;
             drop(spinner);
+            crate::note!("writing {}", out.display());
             let _writing = crate::interrupt::WriteGuard::new();
             std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
             let vtu = out.join("field.vtu");
@@ -241,13 +492,10 @@ fn execute(cli: Cli) -> Result<(), i32> {
             output::write_results_json(&res, &r.results)
                 .map_err(|e| io_fail("results", &res, e))?;
             if json {
-                println!(
-                    "{}",
-                    serde_json::to_string_pretty(&r.results).unwrap_or_default()
-                );
+                print_json(&r.results);
             } else {
-                print!("{}", output::summary(&r.results));
-                println!("wrote {} and {}", res.display(), vtu.display());
+                crate::ui::out(&output::summary(&r.results));
+                crate::say!("wrote {} and {}", res.display(), vtu.display());
             }
             Ok(())
         }
@@ -256,6 +504,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             out,
             shard,
             plot,
+            json: _,
             resume,
         } => {
             let shard = match shard.as_deref().map(|s| (s, parse_shard(s))) {
@@ -284,7 +533,7 @@ fn execute(cli: Cli) -> Result<(), i32> {
             }
             crate::sweep::run_resumable(&out, &raw, &src, &c, shard, resume, &plot)
         }
-        Command::Merge { dirs, out } => {
+        Command::Merge { dirs, out, json: _ } => {
             let mut recs = Vec::new();
             for d in &dirs {
                 let p = d.join("sweep.json");
@@ -318,9 +567,124 @@ fn execute(cli: Cli) -> Result<(), i32> {
             probe,
             axis,
             best,
+            json: _,
         } => crate::map::run(&survey, &pickup, probe.as_deref(), axis, best, &out),
-        Command::Compare { cases, rank, out } => crate::compare::run(&cases, &rank, out.as_deref()),
+        Command::Compare {
+            cases,
+            rank,
+            out,
+            json: _,
+        } => crate::compare::run(&cases, &rank, out.as_deref()),
+        Command::New { kind, out, force } => new_case(&kind, out, force),
+        Command::Explain { key } => explain(key.as_deref()),
+        Command::Completions { shell } => {
+            clap_complete::generate(
+                shell,
+                &mut Cli::command(),
+                "fluxpick",
+                &mut std::io::stdout(),
+            );
+            Ok(())
+        }
+        Command::Manpage { out } => manpage(out.as_deref()),
     }
+}
+
+/// `fluxpick new`: writes a starter case, refusing to replace a file unless `force`.
+fn new_case(kind: &str, out: Option<PathBuf>, force: bool) -> Result<(), i32> {
+    let Some(starter) = crate::starters::find(kind) else {
+        eprintln!("error: no starter `{kind}`");
+        return Err(2);
+    };
+    let out = out.unwrap_or_else(|| PathBuf::from(format!("{kind}.toml")));
+    if out == Path::new("-") {
+        print!("{}", starter.text);
+        return Ok(());
+    }
+    if out.exists() && !force {
+        eprintln!(
+            "error: {} already exists; not replacing it\n  help: pass --force to replace it, or choose another name with --out FILE",
+            out.display()
+        );
+        return Err(2);
+    }
+    if let Some(dir) = out.parent().filter(|d| !d.as_os_str().is_empty()) {
+        std::fs::create_dir_all(dir).map_err(|e| io_fail("folder", dir, e))?;
+    }
+    fluxpick_postproc::atomic_write(&out, starter.text.as_bytes())
+        .map_err(|e| io_fail("case", &out, e))?;
+    let stem = out
+        .file_stem()
+        .map_or("case".into(), |s| s.to_string_lossy().into_owned());
+    crate::say!(
+        "wrote {} ({}).\nNext: read its comments, then\n  fluxpick check {}\n  fluxpick solve {} --out out/{stem} --plot",
+        out.display(),
+        starter.about,
+        out.display(),
+        out.display()
+    );
+    Ok(())
+}
+
+/// `fluxpick explain`: one key's reference entry, or the list of keys.
+fn explain(key: Option<&str>) -> Result<(), i32> {
+    use crate::schema::{lookup, render_terminal, Lookup};
+    let Some(key) = key else {
+        print!("{}", crate::schema::key_list());
+        return Ok(());
+    };
+    match lookup(key) {
+        Lookup::Found(entries) => {
+            let texts: Vec<String> = entries.iter().map(|d| render_terminal(d)).collect();
+            print!("{}", texts.join("\n"));
+            Ok(())
+        }
+        Lookup::NotFound(near) => {
+            match near {
+                Some(n) => eprintln!(
+                    "error: no case-file key `{key}`\n  help: did you mean `{n}`? (`fluxpick explain` lists every key)"
+                ),
+                None => eprintln!(
+                    "error: no case-file key `{key}`\n  help: `fluxpick explain` lists every key"
+                ),
+            }
+            Err(2)
+        }
+    }
+}
+
+/// `fluxpick manpage`: the roff page on standard output, or every page into a folder.
+fn manpage(out: Option<&Path>) -> Result<(), i32> {
+    let cmd = Cli::command();
+    let render = |c: clap::Command| -> Result<Vec<u8>, i32> {
+        let mut buf = Vec::new();
+        clap_mangen::Man::new(c).render(&mut buf).map_err(|e| {
+            eprintln!("error: cannot render the manual page: {e}");
+            1
+        })?;
+        Ok(buf)
+    };
+    let Some(dir) = out else {
+        use std::io::Write as _;
+        let page = render(cmd)?;
+        let _ = std::io::stdout().write_all(&page);
+        return Ok(());
+    };
+    std::fs::create_dir_all(dir).map_err(|e| io_fail("folder", dir, e))?;
+    let mut pages = vec![("fluxpick.1".to_string(), render(cmd.clone())?)];
+    for sub in cmd.get_subcommands() {
+        // clap names are `&'static str` without its `string` feature; one leak per page of a
+        // one-shot command.
+        let name: &'static str = Box::leak(format!("fluxpick-{}", sub.get_name()).into_boxed_str());
+        let page = render(sub.clone().name(name))?;
+        pages.push((format!("{name}.1"), page));
+    }
+    for (name, page) in &pages {
+        let p = dir.join(name);
+        fluxpick_postproc::atomic_write(&p, page).map_err(|e| io_fail("manual page", &p, e))?;
+    }
+    crate::say!("wrote {} manual pages into {}", pages.len(), dir.display());
+    Ok(())
 }
 
 /// Writes a sweep's files and prints what it did; exit 1 when any point failed.
@@ -341,23 +705,26 @@ pub(crate) fn finish_sweep(
     })?;
     let failed: Vec<&crate::sweep::PointResult> =
         rec.points.iter().filter(|p| p.error.is_some()).collect();
+    if crate::ui::json() {
+        print_json(rec);
+    }
     if secs > 0.0 {
-        println!(
+        crate::say!(
             "{} points in {secs:.1} s ({:.2} points/s), {} failed",
             rec.points.len(),
             rec.points.len() as f64 / secs,
             failed.len()
         );
     } else {
-        println!("{} points, {} failed", rec.points.len(), failed.len());
+        crate::say!("{} points, {} failed", rec.points.len(), failed.len());
     }
-    println!(
+    crate::say!(
         "wrote {}/sweep.csv, sweep.json and {} plots",
         out.display(),
         plots.len()
     );
     for c in crate::sweep::saturation_crossings(rec) {
-        println!(
+        crate::say!(
             "{} reaches {:.0} % at {} = {:.4}",
             c.figure,
             100.0 * c.level,

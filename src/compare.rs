@@ -11,6 +11,7 @@ use crate::study::{self, Results};
 use fluxpick_postproc::atomic_write;
 
 /// One case's line of the comparison.
+#[derive(serde::Serialize)]
 struct Row {
     file: String,
     coil: String,
@@ -109,9 +110,12 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
             "flux_linkage_wb" | "eddy_resistance_ohm" | "load_power_w"
         );
     if !rank_known {
+        let names: Vec<&str> = COLUMNS.iter().map(|c| c.0).collect();
+        let near = crate::case::error::nearest(rank, names.iter().copied())
+            .map_or(String::new(), |m| format!("did you mean `--rank {m}`? "));
         eprintln!(
-            "error: --rank {rank}: not a coil figure; use one of {}",
-            COLUMNS.iter().map(|c| c.0).collect::<Vec<_>>().join(", ")
+            "error: --rank {rank}: not a coil figure\n  help: {near}use one of {}",
+            names.join(", ")
         );
         return Err(2);
     }
@@ -156,10 +160,14 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
         }
         t.push('\n');
     }
-    print!("{t}");
-    println!("ranked by {rank}, highest first; masses in grams; R is winding + induced");
+    crate::ui::out(&t);
+    crate::say!("ranked by {rank}, highest first; masses in grams; R is winding + induced");
     for r in rows.iter().filter(|r| r.error.is_some()) {
         eprintln!("{}: failed: {}", r.file, r.error.as_deref().unwrap_or(""));
+    }
+    if crate::ui::json() {
+        let v = serde_json::json!({ "rank_by": rank, "rows": rows });
+        println!("{}", serde_json::to_string_pretty(&v).unwrap_or_default());
     }
     if let Some(dir) = out {
         std::fs::create_dir_all(dir).map_err(|e| {
@@ -207,7 +215,7 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
         };
         write("compare.md", md.as_bytes())?;
         write("compare.csv", &csv)?;
-        println!("wrote {}/compare.md and compare.csv", dir.display());
+        crate::say!("wrote {}/compare.md and compare.csv", dir.display());
     }
     if rows.iter().any(|r| r.error.is_some()) {
         Err(1)

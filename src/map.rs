@@ -153,8 +153,17 @@ pub fn run(
         None => survey.probes.first(),
     }
     .ok_or_else(|| {
+        let names: Vec<&str> = survey.probes.iter().map(|p| p.name.as_str()).collect();
+        let help =
+            match probe_name.and_then(|n| crate::case::error::nearest(n, names.iter().copied())) {
+                Some(m) => format!("did you mean `--probe {m}`?"),
+                None if names.is_empty() => {
+                    "add a [[probe]] with a grid or a line to the survey case".into()
+                }
+                None => format!("the survey's probes: {}", names.join(", ")),
+            };
         fail(format!(
-            "{}: no [[probe]]{} to map over; add a grid or line probe",
+            "{}: no [[probe]]{} to map over\n  help: {help}",
             survey_path.display(),
             probe_name.map_or(String::new(), |n| format!(" named `{n}`"))
         ))
@@ -250,8 +259,11 @@ pub fn run(
         eprintln!("error: {e}");
         1
     })?;
+    if crate::ui::json() {
+        println!("{}", serde_json::to_string_pretty(&rec).unwrap_or_default());
+    }
     // summary: the best positions
-    println!(
+    crate::say!(
         "pickup {}: equivalent area {:.4e} m², L {}, R {}; survey {} at {} Hz, {} points of probe `{}`",
         rec.pickup,
         a_eq,
@@ -264,12 +276,18 @@ pub fn run(
     );
     let mut order: Vec<&MapPoint> = rec.points.iter().collect();
     order.sort_by(|a, b| b.emf_best_v.total_cmp(&a.emf_best_v));
-    println!(
+    crate::say!(
         "{:>4} {:>10} {:>10} {:>12} {:>8} {:>12} {:>12}  note",
-        "rank", "x (m)", "y (m)", "EMF best", "axis °", "P matched", "EMF fixed"
+        "rank",
+        "x (m)",
+        "y (m)",
+        "EMF best",
+        "axis °",
+        "P matched",
+        "EMF fixed"
     );
     for (i, p) in order.iter().take(best).enumerate() {
-        println!(
+        crate::say!(
             "{:>4} {:>10.4} {:>10.4} {:>12} {:>8.1} {:>12} {:>12}  {}",
             i + 1,
             p.x_m,
@@ -286,11 +304,11 @@ pub fn run(
         );
     }
     if order.first().is_some_and(|p| p.emf_best_v > 50.0) {
-        println!(
+        crate::say!(
             "caution: EMF above 50 V at the best positions; a tuned pickup's capacitor sees about Q times that. Treat the coil and its circuit as hazardous, and follow local rules for work near live conductors"
         );
     }
-    println!(
+    crate::say!(
         "wrote {}/map.csv, map.json, map.svg{}",
         out.display(),
         if matches!(probe.kind, ProbeKind::Grid { .. }) {

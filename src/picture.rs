@@ -140,7 +140,9 @@ pub fn field_svg(run: &Run, width: usize) -> String {
         hpx + legend_h
     );
     let _ = writeln!(s, r#"<rect width="100%" height="100%" fill="white"/>"#);
-    // shading: runs of equal colour per row (32 levels)
+    // shading: runs of equal colour per row (32 levels), drawn without anti-aliasing so that
+    // abutting rows leave no hairline seams when the picture is scaled
+    let _ = writeln!(s, r#"<g shape-rendering="crispEdges">"#);
     let level = |v: f64| -> Option<usize> {
         (v.is_finite() && v > 0.0)
             .then(|| (((v.log10() - l0) / (l1 - l0)).clamp(0.0, 1.0) * 31.0).round() as usize)
@@ -167,6 +169,7 @@ pub fn field_svg(run: &Run, width: usize) -> String {
             i = e;
         }
     }
+    let _ = writeln!(s, "</g>");
     // flux lines by marching squares over the corner samples
     let finite: Vec<f64> = psi.iter().copied().filter(|v| v.is_finite()).collect();
     if let (Some(mn), Some(mx)) = (

@@ -796,7 +796,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
         }
         v
     };
-    let est = estimate(&est_fields);
+    let est = estimate(&est_fields, mesh.exterior.as_ref().map(|e| e.region));
     // phasor k (units, then the background) -> its real and imaginary field indices
     let stride = if harmonic.is_some() { 2 } else { 1 };
     let gc = |a: usize, b: usize| -> C {

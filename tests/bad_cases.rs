@@ -138,6 +138,11 @@ fn problems(case: &BadCase, command: &str, o: &Output, want_exit: i32) -> Vec<St
     if want_exit == 0 {
         return out;
     }
+    // Errors that teach: every refusal says how to fix it (issue 11).
+    need(
+        err.contains("help:"),
+        "stderr has no `help:` line saying how to fix it".into(),
+    );
     let n = &case.name;
     need(
         err.contains(&format!(" {n}:")) || err.contains(&format!("[{n}:")),

@@ -17,7 +17,7 @@
 use crate::error::MeshError;
 use crate::geom::{dist2, dist2_point_segment, BBox};
 use crate::grid::{PointGrid, SegGrid};
-use crate::shape::{resolve_all, Domain, DomainKind, RegionGeometry, SPACING};
+use crate::shape::{resolve_all_mapped, Domain, DomainKind, RegionGeometry, SPACING};
 use crate::size::SizeField;
 use crate::sizemap::SizeMap;
 use crate::tag::{tag_faces, Cdt};
@@ -360,7 +360,7 @@ pub(crate) fn mesh_domain(
     spec: &MeshSpec,
     map: Option<&SizeMap>,
 ) -> Result<(Domain, Vec<RegionGeometry>, DomainMesh), MeshError> {
-    let (domain, regions) = resolve_all(spec)?;
+    let (domain, regions) = resolve_all_mapped(spec, map)?;
     let (w, h) = (
         domain.bbox.max[0] - domain.bbox.min[0],
         domain.bbox.max[1] - domain.bbox.min[1],

@@ -9,6 +9,7 @@
 
 use crate::error::MeshError;
 use crate::geom::{polygon_area, segments_touch, BBox};
+use crate::sizemap::SizeMap;
 use crate::{Cuts, MeshSpec, Outer, Point, Shape};
 use std::f64::consts::PI;
 
@@ -126,6 +127,51 @@ fn ellipse_loop(c: Point, a: f64, b: f64, h: f64) -> Vec<Point> {
         .collect()
 }
 
+/// Ellipse (or circle) polygon with the exact area whose chords follow the finer of `h` and
+/// `map` along the curve (adaptive refinement: fine where the map asks, not everywhere).
+fn ellipse_loop_mapped(c: Point, a: f64, b: f64, h: f64, map: &SizeMap) -> Vec<Point> {
+    let at = |t: f64| {
+        let u = unit(t);
+        [c[0] + a * u[0], c[1] + b * u[1]]
+    };
+    let local = |t: f64| map.at(at(t)).map_or(h, |m| m.min(h));
+    // the finest target along the curve sets the sampling of the density integral
+    let coarse: Vec<f64> = (0..4 * MIN_CURVE_SEGMENTS)
+        .map(|k| local(2.0 * PI * k as f64 / (4 * MIN_CURVE_SEGMENTS) as f64))
+        .collect();
+    let finest = coarse.iter().copied().fold(h, f64::min);
+    let perimeter = 2.0 * PI * a.max(b);
+    let samples = ((4.0 * perimeter / finest).ceil() as usize).clamp(1024, 1 << 22);
+    let dt = 2.0 * PI / samples as f64;
+    // W(t) = ∫ |dp/dt| / (SPACING h_local) dt: one chord per unit of W
+    let mut w = Vec::with_capacity(samples + 1);
+    w.push(0.0);
+    for k in 0..samples {
+        let t = (k as f64 + 0.5) * dt;
+        let speed = (a * t.sin()).hypot(b * t.cos());
+        let dens = (speed / (SPACING * local(t))).max(MIN_CURVE_SEGMENTS as f64 / (2.0 * PI));
+        w.push(w[k] + dens * dt);
+    }
+    let total = w[samples];
+    let n = (total.ceil() as usize).clamp(MIN_CURVE_SEGMENTS, 1 << 22);
+    let mut pts = Vec::with_capacity(n);
+    let mut k = 0;
+    for i in 0..n {
+        let target = total * i as f64 / n as f64;
+        while k + 1 < samples && w[k + 1] < target {
+            k += 1;
+        }
+        let f = ((target - w[k]) / (w[k + 1] - w[k])).clamp(0.0, 1.0);
+        pts.push(at((k as f64 + f) * dt));
+    }
+    // scale about the centre to the exact area πab
+    let area = polygon_area(&pts).abs();
+    let s = (PI * a * b / area).sqrt();
+    pts.iter()
+        .map(|p| [c[0] + s * (p[0] - c[0]), c[1] + s * (p[1] - c[1])])
+        .collect()
+}
+
 fn validate_polygon(region: usize, p: &[Point]) -> Result<(), MeshError> {
     if p.len() < 3 {
         return Err(MeshError::DegenerateShape {
@@ -196,7 +242,12 @@ pub(crate) fn polygonise(
     region: usize,
     shape: &Shape,
     h: f64,
+    map: Option<&SizeMap>,
 ) -> Result<Vec<Vec<Point>>, MeshError> {
+    let ellipse = |c: Point, a: f64, b: f64| match map {
+        Some(m) => ellipse_loop_mapped(c, a, b, h, m),
+        None => ellipse_loop(c, a, b, h),
+    };
     let bad = |reason| Err(MeshError::DegenerateShape { region, reason });
     match shape {
         Shape::Rect { min, max } => {
@@ -215,7 +266,7 @@ pub(crate) fn polygonise(
             if !pos(*radius) {
                 return bad("radius must be positive and finite");
             }
-            Ok(vec![ellipse_loop(*center, *radius, *radius, h)])
+            Ok(vec![ellipse(*center, *radius, *radius)])
         }
         Shape::Ellipse { center, semi_axes } => {
             if !finite(*center) {
@@ -224,7 +275,7 @@ pub(crate) fn polygonise(
             if !pos(semi_axes[0]) || !pos(semi_axes[1]) {
                 return bad("semi-axes must be positive and finite");
             }
-            Ok(vec![ellipse_loop(*center, semi_axes[0], semi_axes[1], h)])
+            Ok(vec![ellipse(*center, semi_axes[0], semi_axes[1])])
         }
         Shape::Annulus {
             center,
@@ -238,8 +289,8 @@ pub(crate) fn polygonise(
                 return bad("annulus needs 0 < inner < outer");
             }
             Ok(vec![
-                ellipse_loop(*center, *outer, *outer, h),
-                ellipse_loop(*center, *inner, *inner, h),
+                ellipse(*center, *outer, *outer),
+                ellipse(*center, *inner, *inner),
             ])
         }
         Shape::Polygon(p) => {
@@ -432,6 +483,16 @@ pub(crate) fn validate_spec(spec: &MeshSpec) -> Result<(), MeshError> {
 }
 
 pub(crate) fn resolve_all(spec: &MeshSpec) -> Result<(Domain, Vec<RegionGeometry>), MeshError> {
+    resolve_all_mapped(spec, None)
+}
+
+/// [`resolve_all`] with adaptive size targets: a curved shape is polygonised at the finest
+/// size `map` asks for along it (so refinement also makes circles and ellipses rounder and the
+/// geometry error shrinks with the discretisation error).
+pub(crate) fn resolve_all_mapped(
+    spec: &MeshSpec,
+    map: Option<&SizeMap>,
+) -> Result<(Domain, Vec<RegionGeometry>), MeshError> {
     validate_spec(spec)?;
     let domain = resolve_domain(spec)?;
     let scale = domain.bbox.diag();
@@ -458,7 +519,7 @@ pub(crate) fn resolve_all(spec: &MeshSpec) -> Result<(Domain, Vec<RegionGeometry
             }
             None => None,
         };
-        let mut loops = polygonise(i, &r.shape, skin.unwrap_or(h))?;
+        let mut loops = polygonise(i, &r.shape, skin.unwrap_or(h), map)?;
         if spec.clip_at_axis {
             loops = loops
                 .iter()

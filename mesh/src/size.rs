@@ -125,7 +125,7 @@ impl SizeField {
             }
             best = best.min(f.h + self.slope * f.bbox.dist(p));
         }
-        best.min(self.mapped(p))
+        best.min(self.map.as_ref().map_or(f64::INFINITY, |m| m.lower(p)))
     }
 
     /// The smallest size anywhere.

@@ -15,6 +15,8 @@ pub struct SizeMap {
     dims: [usize; 2],
     start: Vec<u32>,
     items: Vec<u32>,
+    /// Per bin: the smallest target among its triangles (a cheap lower bound).
+    bin_min: Vec<f64>,
 }
 
 impl SizeMap {
@@ -74,6 +76,15 @@ impl SizeMap {
                 }
             }
         }
+        let bin_min = (0..n * n)
+            .map(|b| {
+                items[start[b] as usize..start[b + 1] as usize]
+                    .iter()
+                    .map(|&t| h[t as usize])
+                    .filter(|h| *h > 0.0 && h.is_finite())
+                    .fold(f64::INFINITY, f64::min)
+            })
+            .collect();
         SizeMap {
             points,
             triangles,
@@ -83,7 +94,21 @@ impl SizeMap {
             dims,
             start,
             items,
+            bin_min,
         }
+    }
+
+    /// A lower bound of [`Self::at`] at `p` (the smallest target of its bin; infinite
+    /// outside the map), in constant time.
+    pub fn lower(&self, p: Point) -> f64 {
+        let fi = ((p[0] - self.min[0]) / self.cell[0]).floor();
+        let fj = ((p[1] - self.min[1]) / self.cell[1]).floor();
+        if !(fi >= -1.0 && fi <= self.dims[0] as f64 && fj >= -1.0 && fj <= self.dims[1] as f64) {
+            return f64::INFINITY;
+        }
+        let i = (fi.max(0.0) as usize).min(self.dims[0] - 1);
+        let j = (fj.max(0.0) as usize).min(self.dims[1] - 1);
+        self.bin_min[j * self.dims[0] + i]
     }
 
     /// The target at `p`: the value of the triangle containing it (the smallest among

@@ -231,6 +231,8 @@ pub struct Case {
     pub accuracy: Option<f64>,
     /// Element budget of the adaptive refinement (domain triangles).
     pub max_triangles: usize,
+    /// Refine every cell each pass instead of where the error is (for comparison).
+    pub uniform_refinement: bool,
     /// Metres per file length unit.
     pub length_unit_m: f64,
     /// Resolved parameter values, in the file's own terms, overrides applied.

@@ -104,6 +104,14 @@ pub enum RawSymmetry {
     Axisymmetric,
 }
 
+/// How the accuracy loop refines: where the error is (the default) or everywhere.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RawRefinement {
+    Adaptive,
+    Uniform,
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Deserialize)]
 pub enum RawLengthUnit {
     #[serde(rename = "mm")]
@@ -149,6 +157,10 @@ pub struct RawModel {
     /// Element budget of the adaptive refinement (triangles of the domain).
     #[serde(default)]
     pub max_triangles: Option<SNum>,
+    /// "adaptive" (refine where the estimated error is) or "uniform" (every cell, for
+    /// comparison).
+    #[serde(default)]
+    pub refinement: Option<Spanned<RawRefinement>>,
 }
 
 /// `rect = { min, max }` or `rect = { center, size }`.

@@ -78,6 +78,7 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
             None if valid.is_empty() => "remove it: this table takes no keys".to_string(),
             None => format!("valid keys here: {}", valid.join(", ")),
         };
+        let help = format!("{help}; `fluxpick explain KEY` says what each one means");
         // The span is the key's own, so `table_path` already ends with it.
         let key = if table_path.ends_with(bad.as_str()) {
             table_path
@@ -114,6 +115,10 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
     if msg.starts_with("missing field") && !ticks.is_empty() {
         let field = &ticks[0];
         let key = join(&table_path, field);
+        let example = schema_entry(&key).map_or_else(
+            || format!("`{field} = ...`"),
+            |d| format!("e.g. `{}`", d.example),
+        );
         return CaseError::new(
             K::MissingKey,
             name,
@@ -121,7 +126,7 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
             span,
             key.clone(),
             format!("missing required key `{field}`"),
-            format!("add `{field} = ...` to this table (`{key}`)"),
+            format!("add {example} to this table (`{key}`)"),
         );
     }
     let kind = if msg.starts_with("invalid type")
@@ -132,9 +137,18 @@ pub(super) fn serde_error(name: &str, text: &str, e: &toml::de::Error) -> CaseEr
     } else {
         K::Syntax
     };
-    let help = match kind {
-        K::WrongType => "give a value of the type the key expects (see shared/CASE-FORMAT.md)",
-        _ => "fix the TOML syntax here",
+    let help = match (kind, schema_entry(&table_path)) {
+        (K::WrongType, Some(d)) => format!(
+            "`{}` takes {}, e.g. `{}` (`fluxpick explain {}` for more)",
+            d.key,
+            d.ty.describe(),
+            d.example,
+            d.key
+        ),
+        (K::WrongType, None) => {
+            "give a value of the type the key expects (`fluxpick explain KEY` says which)".into()
+        }
+        _ => "fix the TOML syntax here".to_string(),
     };
     // Text that does not parse has no key path: name the table it is in instead.
     let table_path = match (&span, table_path.is_empty()) {
@@ -169,6 +183,17 @@ fn enclosing_table(text: &str, pos: usize) -> String {
         .filter(|l| header(l).is_some_and(|(m, a)| a && m == name))
         .count();
     format!("{name}[{}]", n.saturating_sub(1))
+}
+
+/// The case-reference entry of a key path as errors name it (`part[2].circle.radius`).
+fn schema_entry(path: &str) -> Option<&'static crate::schema::KeyDoc> {
+    if path.is_empty() {
+        return None;
+    }
+    match crate::schema::lookup(path) {
+        crate::schema::Lookup::Found(v) if v.len() == 1 => Some(v[0]),
+        _ => None,
+    }
 }
 
 fn backticked(s: &str) -> Vec<String> {
@@ -392,7 +417,13 @@ fn resolve_parameters(
             }
         };
         if !v.is_finite() {
-            return Err(src.error(K::NotFinite, sp(raw), key, "not a finite number", ""));
+            return Err(src.error(
+                K::NotFinite,
+                sp(raw),
+                key,
+                "not a finite number",
+                "give the parameter an ordinary number (TOML's nan and inf are not values)",
+            ));
         }
         done.insert(name.to_string(), v);
         Ok(v)
@@ -934,6 +965,10 @@ pub(super) fn resolve(
             v as usize
         }
     };
+    let uniform_refinement = m
+        .refinement
+        .as_ref()
+        .is_some_and(|r| *r.get_ref() == RawRefinement::Uniform);
     let title = m
         .title
         .as_ref()
@@ -1359,6 +1394,7 @@ pub(super) fn resolve(
         element_order,
         accuracy,
         max_triangles,
+        uniform_refinement,
         length_unit_m: cx.unit,
         parameters: cx.params.clone(),
         domain,
