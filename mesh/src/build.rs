@@ -365,7 +365,11 @@ pub(crate) fn mesh_domain(
         domain.bbox.max[0] - domain.bbox.min[0],
         domain.bbox.max[1] - domain.bbox.min[1],
     );
-    if !(w.min(h) * MAX_DOMAIN_ASPECT >= w.max(h)) {
+    // (NaN sides count as too thin)
+    if (w.min(h) * MAX_DOMAIN_ASPECT)
+        .partial_cmp(&w.max(h))
+        .is_none_or(|o| o.is_lt())
+    {
         return Err(MeshError::BadDomain {
             reason: "the domain is more than 1e5 times longer than it is wide",
         });
@@ -400,7 +404,8 @@ pub(crate) fn mesh_domain(
         }
     }
     let cap = spec.params.max_vertices;
-    if !(est <= cap as f64) {
+    // (a NaN or infinite estimate is over the cap too)
+    if est.partial_cmp(&(cap as f64)).is_none_or(|o| o.is_gt()) {
         return Err(MeshError::TooManyVertices {
             estimate: est,
             limit: cap,
