@@ -17,16 +17,23 @@ use crate::case::{element_shares, Case, Share};
 /// Share of the available memory a run may plan to use (the rest for the system and for
 /// the estimate's error).
 pub const AVAILABLE_SHARE: f64 = 0.8;
-/// Memory of the process before any mesh (binary, thread pool, case), bytes.
-pub const BASE_BYTES: f64 = 60e6;
+/// Memory of the process before any mesh (binary, thread pool, case), bytes: peak RSS of
+/// the smallest solves measured was 35 MB.
+pub const BASE_BYTES: f64 = 30e6;
+// Peak memory per *estimated* triangle (what is known before meshing), bytes, rounded up
+// from peak RSS of `fluxpick solve` on the example cases with every mesh size scaled down
+// (DEVELOPERS.md "Robustness"): the rod example at 2nd order 3380 (62k estimated
+// triangles), 3760 (248k), 3770 (993k); at 1st order 560, 1000 (248k); the feeder pair
+// (eddy currents) at 2nd order 7710 (17k), 6650 (69k), 6060 (274k); at 1st order 1160,
+// 2430, 2110. Cases whose estimate misses much of the mesh need more (see DEVELOPERS.md).
 /// Peak memory per estimated triangle, bytes: static solves with 2nd-order elements.
-pub const BYTES_PER_TRIANGLE_STATIC_P2: f64 = 2000.0;
+pub const BYTES_PER_TRIANGLE_STATIC_P2: f64 = 4000.0;
 /// Peak memory per estimated triangle, bytes: static solves with 1st-order elements.
-pub const BYTES_PER_TRIANGLE_STATIC_P1: f64 = 700.0;
+pub const BYTES_PER_TRIANGLE_STATIC_P1: f64 = 1400.0;
 /// Peak memory per estimated triangle, bytes: eddy-current (time-harmonic) solves, 2nd order.
-pub const BYTES_PER_TRIANGLE_EDDY_P2: f64 = 3500.0;
+pub const BYTES_PER_TRIANGLE_EDDY_P2: f64 = 8000.0;
 /// Peak memory per estimated triangle, bytes: eddy-current solves, 1st order.
-pub const BYTES_PER_TRIANGLE_EDDY_P1: f64 = 1200.0;
+pub const BYTES_PER_TRIANGLE_EDDY_P1: f64 = 2600.0;
 
 #[derive(Clone, Debug, PartialEq)]
 struct Settings {

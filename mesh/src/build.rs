@@ -388,6 +388,30 @@ pub(crate) fn mesh_domain(
     let scale = domain.bbox.diag();
     let tol = SNAP_REL * scale;
 
+    // budget: generous estimate of the final vertex count
+    let mut est = domain.bbox.diag().powi(2) / (AREA_FRACTION * bg * bg);
+    for g in &regions {
+        let b = g.bbox;
+        let (bw, bh) = (b.max[0] - b.min[0], b.max[1] - b.min[1]);
+        est += bw * bh / (AREA_FRACTION * g.max_edge * g.max_edge);
+        if let Some(s) = g.skin_edge {
+            // a graded band along the outline: about perimeter / s vertices per ring,
+            // rings growing at the grading rate (Σ 1/1.3^k ≈ 4.3), counted as 5
+            est += 2.0 * (bw + bh) * 5.0 / s;
+        }
+    }
+    let cap = spec.params.max_vertices;
+    // (a NaN or infinite estimate is over the cap too)
+    if est.partial_cmp(&(cap as f64)).is_none_or(|o| o.is_gt()) {
+        return Err(MeshError::TooManyVertices {
+            estimate: est,
+            limit: cap,
+        });
+    }
+    let budget = ((est * BUDGET_FACTOR) as usize)
+        .max(MIN_VERTEX_BUDGET)
+        .min(cap);
+    // the budget is for the whole of refinement, shared by every pass
     // 1-2: split loops, build the PSLG
     let boundary_size = |p: Point| size.at(None, p);
     let mut pslg = Pslg::new(tol);
@@ -415,6 +439,8 @@ pub(crate) fn mesh_domain(
     seeds.sort_by_key(|p| morton(*p, &domain.bbox));
     let n_input = pslg.pts.len() + seeds.len();
 
+    // the budget is for the whole of refinement, shared by every pass
+    let left = |cdt: &Cdt| (n_input + budget).saturating_sub(cdt.num_vertices());
     let mut vertices: Vec<Point2<f64>> = pslg.pts.iter().map(|p| Point2::new(p[0], p[1])).collect();
     vertices.extend(seeds.iter().map(|p| Point2::new(p[0], p[1])));
     let mut conflicts = Vec::new();
@@ -430,22 +456,6 @@ pub(crate) fn mesh_domain(
             |p| p,
         );
     }
-
-    // budget: generous estimate of the final vertex count
-    let mut est = domain.bbox.diag().powi(2) / (AREA_FRACTION * bg * bg);
-    for g in &regions {
-        let b = g.bbox;
-        let (bw, bh) = (b.max[0] - b.min[0], b.max[1] - b.min[1]);
-        est += bw * bh / (AREA_FRACTION * g.max_edge * g.max_edge);
-        if let Some(s) = g.skin_edge {
-            // a graded band along the outline: about perimeter / s vertices per ring,
-            // rings growing at the grading rate (Σ 1/1.3^k ≈ 4.3), counted as 5
-            est += 2.0 * (bw + bh) * 5.0 / s;
-        }
-    }
-    let budget = ((est * BUDGET_FACTOR).min(4e9) as usize).max(MIN_VERTEX_BUDGET);
-    // the budget is for the whole of refinement, shared by every pass
-    let left = |cdt: &Cdt| (n_input + budget).saturating_sub(cdt.num_vertices());
 
     // 4: refinement
     let res =

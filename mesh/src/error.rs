@@ -42,6 +42,10 @@ pub enum MeshError {
     /// The triangulation could not be built (spade rejected a point, e.g. too large).
     #[error("triangulation failed while inserting points")]
     Insertion,
+    /// The spec's sizes ask for more vertices than `MeshParams::max_vertices` (estimated
+    /// before meshing: domain and region bounding boxes at 0.3 h² per vertex, skin bands).
+    #[error("the sizes ask for about {estimate:.3e} vertices, more than the {limit} allowed: use larger element sizes")]
+    TooManyVertices { estimate: f64, limit: usize },
     /// Delaunay refinement ran out of its vertex budget or the size passes did not converge.
     #[error("refinement incomplete at stage `{stage}` after {vertices} vertices")]
     RefinementIncomplete {

@@ -137,13 +137,23 @@ pub struct MeshParams {
     pub min_angle_deg: f64,
     /// Largest ratio of neighbouring element sizes when grading from fine regions (default 1.3).
     pub grading: f64,
+    /// Most vertices meshing may make (default [`DEFAULT_MAX_VERTICES`]): a spec whose
+    /// estimate exceeds it is refused before any work ([`MeshError::TooManyVertices`]), and
+    /// refinement stops there ([`MeshError::RefinementIncomplete`]). Spade keeps about
+    /// 200 bytes per vertex.
+    pub max_vertices: usize,
 }
+
+/// Default [`MeshParams::max_vertices`]: 50 million (about 10 GB of triangulation; the CLI
+/// refuses cases far smaller from their memory estimate first).
+pub const DEFAULT_MAX_VERTICES: usize = 50_000_000;
 
 impl Default for MeshParams {
     fn default() -> Self {
         MeshParams {
             min_angle_deg: 28.0,
             grading: 1.3,
+            max_vertices: DEFAULT_MAX_VERTICES,
         }
     }
 }

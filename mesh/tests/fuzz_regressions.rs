@@ -30,6 +30,7 @@ fn absurdly_thin_domain_is_refused() {
         params: MeshParams {
             min_angle_deg: 20.0,
             grading: 1.1,
+            ..MeshParams::default()
         },
     };
     assert!(matches!(outcome(&spec), Err(MeshError::BadDomain { .. })));
@@ -74,6 +75,7 @@ fn subnormal_domain_is_refused() {
         params: MeshParams {
             min_angle_deg: 20.0,
             grading: 1.1,
+            ..MeshParams::default()
         },
     };
     assert!(matches!(outcome(&spec), Err(MeshError::BadDomain { .. })));
@@ -89,4 +91,52 @@ fn subnormal_domain_is_refused() {
         ..spec
     };
     assert_eq!(outcome(&ok), Ok(()));
+}
+
+/// oom-80a57382…: a quarter disk of radius 109.5 with a background size of 6.6e-322. Its
+/// boundary was bisected towards 2^40 points per segment and the run passed 2 GB. Now
+/// refused before any work: the estimate (infinite here) exceeds `max_vertices`.
+#[test]
+fn subnormal_element_size_is_refused_before_meshing() {
+    let spec = MeshSpec {
+        outer: Outer::Disk {
+            center: [-8.0, -11.0],
+            radius: 109.5,
+            cuts: fluxpick_mesh::Cuts {
+                left: false,
+                right: true,
+                bottom: true,
+                top: false,
+            },
+        },
+        background_max_edge: 6.6e-322,
+        regions: vec![],
+        clip_at_axis: false,
+        exterior_image: false,
+        params: MeshParams {
+            min_angle_deg: 20.0,
+            grading: 1.1,
+            ..MeshParams::default()
+        },
+    };
+    assert!(matches!(
+        outcome(&spec),
+        Err(MeshError::TooManyVertices { .. })
+    ));
+    // a finite but too fine size: refused with the estimate, not meshed
+    let fine = MeshSpec {
+        background_max_edge: 0.01,
+        params: MeshParams {
+            max_vertices: 1_000_000,
+            ..MeshParams::default()
+        },
+        ..spec.clone()
+    };
+    match outcome(&fine) {
+        Err(MeshError::TooManyVertices { estimate, limit }) => {
+            assert_eq!(limit, 1_000_000);
+            assert!(estimate > 1e8, "{estimate}");
+        }
+        other => panic!("{other:?}"),
+    }
 }
