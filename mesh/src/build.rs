@@ -400,6 +400,11 @@ pub(crate) fn mesh_domain(
             est += 2.0 * (bw + bh) * 5.0 / s;
         }
     }
+    if let Some(m) = map {
+        // a size map from an earlier mesh (adaptive refinement) asks for more where it is
+        // finer than the spec
+        est += m.vertex_estimate(AREA_FRACTION);
+    }
     let cap = spec.params.max_vertices;
     // (a NaN or infinite estimate is over the cap too)
     if est.partial_cmp(&(cap as f64)).is_none_or(|o| o.is_gt()) {

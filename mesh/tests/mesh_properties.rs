@@ -8,7 +8,7 @@
 
 use fluxpick_mesh::{
     expected_region_areas, generate, Cuts, Mesh, MeshError, MeshParams, MeshSpec, Outer,
-    RegionInput, Shape, Side,
+    RegionInput, Shape, Side, SizeMap,
 };
 use proptest::prelude::*;
 use std::collections::HashMap;
@@ -672,4 +672,60 @@ fn skin_layer_is_fine_at_the_surface_and_coarsens_inward() {
         centre > 2.5,
         "centre elements {centre} should approach the region's 5"
     );
+}
+
+/// The size map's nested bins find the same triangle as a scan of all of them, on a mesh
+/// graded over three decades (a 0.01-sized circle in a 10-sized background), where one bin
+/// of a uniform grid holds thousands of triangles.
+#[test]
+fn size_map_lookup_matches_a_scan_on_a_graded_mesh() {
+    let s = spec(
+        Outer::Rect {
+            min: [0.0, 0.0],
+            max: [100.0, 100.0],
+        },
+        10.0,
+        vec![circle([30.0, 40.0], 0.5, Some(0.01))],
+        false,
+    );
+    let m = generate(&s).unwrap();
+    assert!(m.triangles.len() > 5000, "{}", m.triangles.len());
+    let h: Vec<f64> = (0..m.triangles.len()).map(|t| 1.0 + t as f64).collect();
+    let map = SizeMap::new(m.points.clone(), m.triangles.clone(), h.clone());
+    let scan = |p: [f64; 2]| -> Option<f64> {
+        let mut best: Option<f64> = None;
+        for (t, tri) in m.triangles.iter().enumerate() {
+            let [a, b, c] = tri.map(|v| m.points[v as usize]);
+            let cross = |u: [f64; 2], v: [f64; 2], w: [f64; 2]| {
+                (v[0] - u[0]) * (w[1] - u[1]) - (v[1] - u[1]) * (w[0] - u[0])
+            };
+            let area = cross(a, b, c);
+            let tol = -1e-12 * area.abs();
+            let inside = |x: f64| if area > 0.0 { x >= tol } else { x <= -tol };
+            if inside(cross(a, b, p)) && inside(cross(b, c, p)) && inside(cross(c, a, p)) {
+                best = Some(best.map_or(h[t], |x: f64| x.min(h[t])));
+            }
+        }
+        best
+    };
+    // points spread over the domain and crowded round the small circle, and outside it
+    let mut seed = 12345u64;
+    let mut rnd = || {
+        seed = seed
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        (seed >> 11) as f64 / (1u64 << 53) as f64
+    };
+    for k in 0..1500 {
+        let p = if k % 2 == 0 {
+            [rnd() * 110.0 - 5.0, rnd() * 110.0 - 5.0]
+        } else {
+            [30.0 + rnd() * 2.0 - 1.0, 40.0 + rnd() * 2.0 - 1.0]
+        };
+        assert_eq!(map.at(p), scan(p), "at {p:?}");
+    }
+    // the vertices themselves (on edges of several triangles: the smallest target)
+    for p in m.points.iter().step_by(7) {
+        assert_eq!(map.at(*p), scan(*p), "at vertex {p:?}");
+    }
 }
