@@ -242,9 +242,13 @@ fn curved_interfaces(case: &Case, run: &Run) -> (Vec<usize>, f64) {
     (cells, g)
 }
 
-/// Target sizes on the physical triangles of a run: half the longest edge where marked,
-/// the longest edge elsewhere.
-fn size_map(run: &Run, marked: &[usize]) -> SizeMap {
+/// Target sizes on the physical triangles of a run: where marked, half the target the run
+/// was meshed to (at most 0.8 of the cell's longest edge); elsewhere that target (`prev`, the previous map), or on the first
+/// pass the longest edge. (The mesher's edges come out at about 0.6 of the target asked
+/// for, so taking the longest edge as the next target everywhere shrank every cell by that
+/// again each pass: uniform refinement grew the spheroid's mesh 12 times a pass instead of
+/// 4, and adaptive refinement refined the unmarked cells too.)
+fn size_map(run: &Run, marked: &[usize], prev: Option<&SizeMap>) -> SizeMap {
     let mesh = &run.mesh;
     let image = mesh.exterior.as_ref().map(|e| e.region);
     let physical: Vec<usize> = (0..mesh.triangles.len())
@@ -263,9 +267,25 @@ fn size_map(run: &Run, marked: &[usize]) -> SizeMap {
             })
             .fold(0.0, f64::max)
     };
+    let target = |t: usize| {
+        let p = mesh.triangles[t].map(|v| mesh.points[v as usize]);
+        let c = [
+            (p[0][0] + p[1][0] + p[2][0]) / 3.0,
+            (p[0][1] + p[1][1] + p[2][1]) / 3.0,
+        ];
+        prev.and_then(|m| m.at(c))
+    };
     let h = physical
         .iter()
-        .map(|&t| longest(t) * if shrink[t] { SHRINK } else { 1.0 })
+        .map(|&t| {
+            if shrink[t] {
+                // half the old target, and below the cell's own longest edge so that the
+                // cell is refined even where the mesh came out finer than its target
+                (SHRINK * target(t).unwrap_or_else(|| longest(t))).min(0.8 * longest(t))
+            } else {
+                target(t).unwrap_or_else(|| longest(t))
+            }
+        })
         .collect();
     SizeMap::new(
         mesh.points.clone(),
@@ -409,7 +429,7 @@ pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
         if marked.is_empty() || next > case.max_triangles {
             break (run, "element budget");
         }
-        map = Some(size_map(&run, &marked));
+        map = Some(size_map(&run, &marked, map.as_ref()));
     };
     let reached = stopped == "target reached";
     if !reached {

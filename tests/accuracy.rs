@@ -254,7 +254,7 @@ mesh_size = 5
 "#,
         "parts.spheroid.b_mean_t",
         want,
-        1e-3,
+        1e-4,
         3.0,
     );
 }
