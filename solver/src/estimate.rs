@@ -193,10 +193,9 @@ pub fn estimate(fields: &[(&Field, Use)], skip: Option<u32>) -> Estimate {
                 let (phi, k) = shape(order, q.l);
                 let mut nu = 0.0;
                 let mut dv = 0.0;
-                for (f, field) in fields.iter().enumerate() {
-                    let v = field.at_cell(c, q.l);
+                Field::at_cell_each(&fields, c, q.l, |f, v| {
                     if f == 0 {
-                        nu = field.nu_at(c, v.x);
+                        nu = fields[0].nu_at(c, v.x);
                         dv = q.w * area * v.weight;
                     }
                     let mut bs = [0.0; 2];
@@ -209,7 +208,7 @@ pub fn estimate(fields: &[(&Field, Use)], skip: Option<u32>) -> Estimate {
                     shift[f][0] += dv * err[f][0];
                     shift[f][1] += dv * err[f][1];
                     babs[f] += dv * v.b[0].hypot(v.b[1]);
-                }
+                });
                 for f in 0..m {
                     for h in f..m {
                         g[f * m + h] += dv * nu * (err[f][0] * err[h][0] + err[f][1] * err[h][1]);

@@ -157,6 +157,67 @@ impl Field {
         }
     }
 
+    /// Values of several fields at one point of cell `c`, all on this field's
+    /// discretisation, with the basis evaluated once: `each(k, value of fields[k])`.
+    pub fn at_cell_each(
+        fields: &[&Field],
+        c: usize,
+        l: [f64; 3],
+        each: impl FnMut(usize, PointValue),
+    ) {
+        let Some(first) = fields.first() else {
+            return;
+        };
+        match first.disc.order {
+            Order::Linear => Self::eval_each::<3, P1>(fields, c, l, each),
+            Order::Quadratic => Self::eval_each::<6, P2>(fields, c, l, each),
+        }
+    }
+
+    fn eval_each<const N: usize, B: Basis<N>>(
+        fields: &[&Field],
+        c: usize,
+        l: [f64; 3],
+        mut each: impl FnMut(usize, PointValue),
+    ) {
+        let d = &*fields[0].disc;
+        let g = Geometry::new(d.vertices(c));
+        let f = d.formulation;
+        let pb = point_basis::<N, B>(&g, l, f);
+        let on_axis = f == Formulation::Axisymmetric && pb.x[0] <= 0.0;
+        let grad = on_axis.then(|| g.gradients::<N, B>(l));
+        let nodes = d.cell(c);
+        for (k, field) in fields.iter().enumerate() {
+            let mut a = 0.0;
+            let mut curl = [0.0; 2];
+            for i in 0..N {
+                let ai = field.a[nodes[i] as usize];
+                a += ai * pb.n[i];
+                curl[0] += ai * pb.c[i][0];
+                curl[1] += ai * pb.c[i][1];
+            }
+            let b = match &grad {
+                // r = 0: B_z = 2 ∂A/∂r (A ≈ r ∂A/∂r), B_r = -∂A/∂z = 0 on the axis.
+                Some(grad) => {
+                    let dadr: f64 = (0..N)
+                        .map(|i| field.a[nodes[i] as usize] * grad[i][0])
+                        .sum();
+                    [0.0, 2.0 * dadr]
+                }
+                None => b_from_curl(curl, f),
+            };
+            each(
+                k,
+                PointValue {
+                    x: pb.x,
+                    a,
+                    b,
+                    weight: pb.weight,
+                },
+            );
+        }
+    }
+
     /// A and B at a point of the domain (None outside).
     pub fn at(&self, p: [f64; 2]) -> Option<PointValue> {
         self.locator
