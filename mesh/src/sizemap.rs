@@ -163,9 +163,7 @@ impl SizeMap {
             .filter(|(_, h)| h.is_finite() && **h > 0.0)
             .map(|(t, h)| {
                 let [a, b, c] = t.map(|v| self.points[v as usize]);
-                let area =
-                    0.5 * ((b[0] - a[0]) * (c[1] - a[1]) - (c[0] - a[0]) * (b[1] - a[1])).abs();
-                area / (area_per_h2 * h * h)
+                crate::geom::triangle_area(a, b, c).abs() / (area_per_h2 * h * h)
             })
             .sum()
     }

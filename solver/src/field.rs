@@ -120,41 +120,9 @@ impl Field {
 
     /// A and B at barycentric point `l` of cell `c`.
     pub fn at_cell(&self, c: usize, l: [f64; 3]) -> PointValue {
-        match self.disc.order {
-            Order::Linear => self.eval::<3, P1>(c, l),
-            Order::Quadratic => self.eval::<6, P2>(c, l),
-        }
-    }
-
-    fn eval<const N: usize, B: Basis<N>>(&self, c: usize, l: [f64; 3]) -> PointValue {
-        let d = &*self.disc;
-        let g = Geometry::new(d.vertices(c));
-        let f = d.formulation;
-        // On the axis the A/r term is a limit: evaluate a hair inside.
-        let pb = point_basis::<N, B>(&g, l, f);
-        let nodes = d.cell(c);
-        let mut a = 0.0;
-        let mut curl = [0.0; 2];
-        for i in 0..N {
-            let ai = self.a[nodes[i] as usize];
-            a += ai * pb.n[i];
-            curl[0] += ai * pb.c[i][0];
-            curl[1] += ai * pb.c[i][1];
-        }
-        let b = if f == Formulation::Axisymmetric && pb.x[0] <= 0.0 {
-            // r = 0: B_z = 2 ∂A/∂r (A ≈ r ∂A/∂r), B_r = -∂A/∂z = 0 on the axis.
-            let grad = g.gradients::<N, B>(l);
-            let dadr: f64 = (0..N).map(|i| self.a[nodes[i] as usize] * grad[i][0]).sum();
-            [0.0, 2.0 * dadr]
-        } else {
-            b_from_curl(curl, f)
-        };
-        PointValue {
-            x: pb.x,
-            a,
-            b,
-            weight: pb.weight,
-        }
+        let mut out = None;
+        Self::at_cell_each(&[self], c, l, |_, v| out = Some(v));
+        out.expect("one field, one value")
     }
 
     /// Values of several fields at one point of cell `c`, all on this field's
