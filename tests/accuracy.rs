@@ -1,8 +1,8 @@
 //! Error estimates and the accuracy loop (`model.accuracy`) against reference values that
 //! do not come from fluxpick: every pass's true error is computed from the reference, the
 //! loop must stop with the true error within the target, and after the first pass the
-//! estimate must be within a factor of 3 of the true error (effectivity 1/3 to 3), but for
-//! the one case marked below where it is known to be conservative. Where a test says so,
+//! estimate must be within a factor of 3 of the true error (effectivity 1/3 to 3). Where a
+//! test says so,
 //! the same case refined uniformly (`model.refinement = "uniform"`) must need more unknowns
 //! than the adaptive loop to reach the adaptive loop's final true error.
 
@@ -182,10 +182,7 @@ circle = { center = [15, 5], radius = 0.1 }
         "coils.b.flux_linkage_wb",
         11.8467669422308e-9,
         1e-5,
-        // Known gap (issue 10): the mutual inductance of separated loops converges faster
-        // than the error energy that sets the extrapolation ratio, so the estimate is
-        // conservative here: effectivity 4.5 measured on pass 2. It must not be optimistic.
-        6.0,
+        3.0,
     );
 }
 

@@ -44,6 +44,20 @@ pub fn polygon_area(poly: &[Point]) -> f64 {
     0.5 * s
 }
 
+/// Area centroid of a simple polygon (either orientation; `None` when its area is zero).
+pub fn polygon_centroid(poly: &[Point]) -> Option<Point> {
+    let n = poly.len();
+    let (mut a, mut cx, mut cy) = (0.0, 0.0, 0.0);
+    for i in 0..n {
+        let (p, q) = (poly[i], poly[(i + 1) % n]);
+        let w = p[0] * q[1] - p[1] * q[0];
+        a += w;
+        cx += (p[0] + q[0]) * w;
+        cy += (p[1] + q[1]) * w;
+    }
+    (a != 0.0).then(|| [cx / (3.0 * a), cy / (3.0 * a)])
+}
+
 /// Signed area of a triangle (positive when counter-clockwise).
 #[inline]
 pub fn triangle_area(a: Point, b: Point, c: Point) -> f64 {
