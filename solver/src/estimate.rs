@@ -74,19 +74,24 @@ fn shape(order: Order, l: [f64; 3]) -> ([f64; 6], usize) {
     }
 }
 
-/// The recovered flux density of `field` at the local nodes of every cell
-/// (region-wise area-weighted nodal averages).
-pub fn recover(field: &Field) -> Vec<[[f64; 2]; 6]> {
-    let d = &*field.disc;
+/// The recovered flux density of each of `fields` (all on one discretisation) at the local
+/// nodes of every cell (region-wise area-weighted nodal averages): `out[f][cell][node]`.
+pub fn recover(fields: &[&Field]) -> Vec<Vec<[[f64; 2]; 6]>> {
+    let Some(first) = fields.first() else {
+        return Vec::new();
+    };
+    let d = &*first.disc;
+    let m = fields.len();
     let npe = d.order.nodes_per_cell();
     let nc = d.n_cells();
-    // B_h at the local nodes, and the cell areas
-    let local: Vec<([[f64; 2]; 6], f64)> = (0..nc)
+    // B_h of every field at the local nodes (the basis evaluated once per node), and the
+    // cell areas
+    let local: Vec<(Vec<[[f64; 2]; 6]>, f64)> = (0..nc)
         .into_par_iter()
         .map(|c| {
-            let mut b = [[0.0; 2]; 6];
+            let mut b = vec![[[0.0; 2]; 6]; m];
             for (i, l) in NODES_L.iter().enumerate().take(npe) {
-                b[i] = field.at_cell(c, *l).b;
+                Field::at_cell_each(fields, c, *l, |f, v| b[f][i] = v.b);
             }
             (b, Geometry::new(d.vertices(c)).area)
         })
@@ -108,35 +113,39 @@ pub fn recover(field: &Field) -> Vec<[[f64; 2]; 6]> {
             }
         }
     }
-    let mut sum = vec![[0.0f64; 3]; n];
-    let mut shared: HashMap<(u32, u32), [f64; 3]> = HashMap::new();
-    for c in 0..nc {
-        let r = d.cell_region[c];
-        let (b, area) = &local[c];
-        for (i, &node) in d.cell(c).iter().enumerate() {
-            let s = if owner[node as usize] == MULTI {
-                shared.entry((node, r)).or_insert([0.0; 3])
-            } else {
-                &mut sum[node as usize]
-            };
-            s[0] += area * b[i][0];
-            s[1] += area * b[i][1];
-            s[2] += area;
-        }
-    }
-    (0..nc)
-        .map(|c| {
-            let r = d.cell_region[c];
-            let mut out = [[0.0; 2]; 6];
-            for (i, &node) in d.cell(c).iter().enumerate() {
-                let s = if owner[node as usize] == MULTI {
-                    shared[&(node, r)]
-                } else {
-                    sum[node as usize]
-                };
-                out[i] = [s[0] / s[2], s[1] / s[2]];
+    (0..m)
+        .map(|f| {
+            let mut sum = vec![[0.0f64; 3]; n];
+            let mut shared: HashMap<(u32, u32), [f64; 3]> = HashMap::new();
+            for c in 0..nc {
+                let r = d.cell_region[c];
+                let (b, area) = &local[c];
+                for (i, &node) in d.cell(c).iter().enumerate() {
+                    let s = if owner[node as usize] == MULTI {
+                        shared.entry((node, r)).or_insert([0.0; 3])
+                    } else {
+                        &mut sum[node as usize]
+                    };
+                    s[0] += area * b[f][i][0];
+                    s[1] += area * b[f][i][1];
+                    s[2] += area;
+                }
             }
-            out
+            (0..nc)
+                .map(|c| {
+                    let r = d.cell_region[c];
+                    let mut out = [[0.0; 2]; 6];
+                    for (i, &node) in d.cell(c).iter().enumerate() {
+                        let s = if owner[node as usize] == MULTI {
+                            shared[&(node, r)]
+                        } else {
+                            sum[node as usize]
+                        };
+                        out[i] = [s[0] / s[2], s[1] / s[2]];
+                    }
+                    out
+                })
+                .collect()
         })
         .collect()
 }
@@ -172,7 +181,7 @@ pub fn estimate(fields: &[(&Field, Use)], skip: Option<u32>) -> Estimate {
     let fields: Vec<&Field> = fields.iter().map(|f| f.0).collect();
     let d = &*first.disc;
     let order = d.order;
-    let recovered: Vec<Vec<[[f64; 2]; 6]>> = fields.iter().map(|f| recover(f)).collect();
+    let recovered = recover(&fields);
     // per cell: its contributions to G (m×m) and to the energies (m)
     type CellSums = (Vec<f64>, Vec<f64>, Vec<[f64; 2]>, Vec<f64>);
     let per_cell: Vec<CellSums> = (0..d.n_cells())

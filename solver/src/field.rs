@@ -230,6 +230,11 @@ impl Field {
         self.nu[self.disc.cell_region[c] as usize].at(x, self.disc.formulation)
     }
 
+    /// Whether every nodal value is zero.
+    pub fn is_zero(&self) -> bool {
+        self.a.iter().all(|&x| x == 0.0)
+    }
+
     /// Magnetic energy ½∫ν|B|² dV over the cells for which `keep(cell)` holds
     /// (J, per metre of depth in planar form). Image cells hold the exterior's energy.
     pub fn energy(&self, keep: impl Fn(usize) -> bool + Sync) -> f64 {
@@ -241,6 +246,14 @@ impl Field {
     /// of axisymmetric ones up to the A/r term (degree 3), and for the image's ν ∝ ρ'².
     pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool + Sync) -> f64 {
         use rayon::prelude::*;
+        // a field that is zero everywhere (the imaginary part of a static solve) adds
+        // nothing: no pass over the cells
+        if self.is_zero() || other.is_zero() {
+            return 0.0;
+        }
+        let same = std::ptr::eq(self, other);
+        let pair = [self, other];
+        let fields: &[&Field] = if same { &pair[..1] } else { &pair[..] };
         let rule = &crate::quadrature::DEGREE5;
         (0..self.disc.n_cells())
             .into_par_iter()
@@ -249,8 +262,18 @@ impl Field {
                 let area = Geometry::new(self.disc.vertices(c)).area;
                 let mut w = 0.0;
                 for q in rule {
-                    let v = self.at_cell(c, q.l);
-                    let u = other.at_cell(c, q.l);
+                    // the basis once for both fields
+                    let mut v = None;
+                    let mut u = None;
+                    Field::at_cell_each(fields, c, q.l, |k, p| {
+                        if k == 0 {
+                            v = Some(p);
+                        } else {
+                            u = Some(p);
+                        }
+                    });
+                    let v = v.expect("a value");
+                    let u = u.unwrap_or(v);
                     w += q.w
                         * area
                         * v.weight
