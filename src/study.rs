@@ -764,7 +764,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
     };
     let energy2 = |a: &Phasor, b: &Phasor| -> f64 {
         // ∫ν Re(B_a · B_b*) dV: the energy route to L_ab
-        a.f[0].coenergy_with(&b.f[0], |_| true) + a.f[1].coenergy_with(&b.f[1], |_| true)
+        Field::coenergy_sum(&[(&a.f[0], &b.f[0]), (&a.f[1], &b.f[1])], |_| true)
     };
     let nw = unit.len();
     let mut flux_m = vec![vec![0.0; nw]; nw];
@@ -1372,7 +1372,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
         }
         w * depth
     } else {
-        (domain_energy(&field[0]) + domain_energy(&field[1])) * depth
+        domain_energy(&[&field[0], &field[1]]) * depth
     };
     let stats = mesh.stats();
     let physical_cells = (0..disc.n_cells()).filter(|&c| !disc.is_image(c)).count();

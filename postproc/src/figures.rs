@@ -82,7 +82,12 @@ pub fn flux_linkage(f: &Field, density: &[Density]) -> f64 {
         .sum()
 }
 
-/// Magnetic energy in the physical domain (not the exterior image), J (per metre in planar).
-pub fn domain_energy(f: &Field) -> f64 {
-    f.energy(|c| !f.disc.is_image(c))
+/// Magnetic energy in the physical domain (not the exterior image) of the field whose parts
+/// (a phasor's real and imaginary, say) are `parts`, in one pass: J (per metre in planar).
+pub fn domain_energy(parts: &[&Field]) -> f64 {
+    let Some(first) = parts.first() else {
+        return 0.0;
+    };
+    let pairs: Vec<(&Field, &Field)> = parts.iter().map(|&f| (f, f)).collect();
+    0.5 * Field::coenergy_sum(&pairs, |c| !first.disc.is_image(c))
 }

@@ -245,40 +245,69 @@ impl Field {
     /// deterministic whatever the thread count. The degree-5 rule is exact for B·B' w of second-order planar elements (degree 2) and
     /// of axisymmetric ones up to the A/r term (degree 3), and for the image's ν ∝ ρ'².
     pub fn coenergy_with(&self, other: &Field, keep: impl Fn(usize) -> bool + Sync) -> f64 {
+        Field::coenergy_sum(&[(self, other)], keep)
+    }
+
+    /// Σ over `pairs` of ∫ν B·B' dV (the real and imaginary parts of a phasor product, say)
+    /// in one pass over the cells, the basis evaluated once per point for all the fields;
+    /// deterministic whatever the thread count. A pair with a field that is zero everywhere
+    /// (the imaginary part of a static solve) is left out: it adds nothing.
+    pub fn coenergy_sum(pairs: &[(&Field, &Field)], keep: impl Fn(usize) -> bool + Sync) -> f64 {
         use rayon::prelude::*;
-        // a field that is zero everywhere (the imaginary part of a static solve) adds
-        // nothing: no pass over the cells
-        if self.is_zero() || other.is_zero() {
+        let pairs: Vec<(&Field, &Field)> = pairs
+            .iter()
+            .copied()
+            .filter(|(a, b)| !a.is_zero() && !b.is_zero())
+            .collect();
+        let Some(first) = pairs.first().map(|p| p.0) else {
             return 0.0;
+        };
+        // the distinct fields, and each pair's two indices among them
+        let mut fields: Vec<&Field> = Vec::new();
+        let mut idx: Vec<(usize, usize)> = Vec::with_capacity(pairs.len());
+        for &(a, b) in &pairs {
+            let mut ab = [0; 2];
+            for (k, f) in [a, b].into_iter().enumerate() {
+                ab[k] = match fields.iter().position(|g| std::ptr::eq(*g, f)) {
+                    Some(i) => i,
+                    None => {
+                        fields.push(f);
+                        fields.len() - 1
+                    }
+                };
+            }
+            idx.push((ab[0], ab[1]));
         }
-        let same = std::ptr::eq(self, other);
-        let pair = [self, other];
-        let fields: &[&Field] = if same { &pair[..1] } else { &pair[..] };
         let rule = &crate::quadrature::DEGREE5;
-        (0..self.disc.n_cells())
+        (0..first.disc.n_cells())
             .into_par_iter()
             .filter(|&c| keep(c))
             .map(|c| {
-                let area = Geometry::new(self.disc.vertices(c)).area;
+                let area = Geometry::new(first.disc.vertices(c)).area;
+                let mut vals = [PointValue {
+                    x: [0.0; 2],
+                    a: 0.0,
+                    b: [0.0; 2],
+                    weight: 0.0,
+                }; 8];
+                let mut more = Vec::new();
                 let mut w = 0.0;
                 for q in rule {
-                    // the basis once for both fields
-                    let mut v = None;
-                    let mut u = None;
-                    Field::at_cell_each(fields, c, q.l, |k, p| {
-                        if k == 0 {
-                            v = Some(p);
+                    Field::at_cell_each(&fields, c, q.l, |k, p| {
+                        if k < 8 {
+                            vals[k] = p;
                         } else {
-                            u = Some(p);
+                            more.push(p);
                         }
                     });
-                    let v = v.expect("a value");
-                    let u = u.unwrap_or(v);
-                    w += q.w
-                        * area
-                        * v.weight
-                        * self.nu_at(c, v.x)
-                        * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
+                    let at = |k: usize| if k < 8 { vals[k] } else { more[k - 8] };
+                    let v0 = at(0);
+                    let nu = first.nu_at(c, v0.x);
+                    for &(i, j) in &idx {
+                        let (v, u) = (at(i), at(j));
+                        w += q.w * area * v.weight * nu * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
+                    }
+                    more.clear();
                 }
                 w
             })
