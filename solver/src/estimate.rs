@@ -23,7 +23,7 @@ use rayon::prelude::*;
 
 use crate::element::Geometry;
 use crate::field::Field;
-use crate::quadrature::DEGREE6;
+use crate::quadrature::DEGREE5;
 use crate::Order;
 
 /// Recovered-error quantities of a set of fields on one discretisation.
@@ -193,10 +193,13 @@ pub fn estimate(fields: &[(&Field, Use)], skip: Option<u32>) -> Estimate {
             let mut shift = vec![[0.0; 2]; m];
             let mut babs = vec![0.0; m];
             let mut err = vec![[0.0; 2]; m];
+            // degree 5: exact for |B* − B_h|² (degree 4) and ν|B_h|² of planar quadratic
+            // elements; the degree-6 rule (12 points against 7) changed no estimate that
+            // matters and cost 0.08 s of 0.61 s of post-processing at 204k unknowns (60 Hz)
             let rule = if Some(d.cell_region[c]) == skip {
                 &[][..]
             } else {
-                &DEGREE6[..]
+                &DEGREE5[..]
             };
             for q in rule.iter() {
                 let (phi, k) = shape(order, q.l);
