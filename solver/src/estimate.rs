@@ -84,17 +84,17 @@ pub fn recover(fields: &[&Field]) -> Vec<Vec<[[f64; 2]; 6]>> {
     let m = fields.len();
     let npe = d.order.nodes_per_cell();
     let nc = d.n_cells();
-    // B_h of every field at the local nodes (the basis evaluated once per node), and the
-    // cell areas
-    let local: Vec<(Vec<[[f64; 2]; 6]>, f64)> = (0..nc)
+    // B_h of every field at the local nodes (the basis evaluated once per node), cell c's
+    // at local[c * m + f], and the cell areas
+    let mut local = vec![[[0.0; 2]; 6]; nc * m];
+    local.par_chunks_mut(m).enumerate().for_each(|(c, b)| {
+        for (i, l) in NODES_L.iter().enumerate().take(npe) {
+            Field::at_cell_each(fields, c, *l, |f, v| b[f][i] = v.b);
+        }
+    });
+    let areas: Vec<f64> = (0..nc)
         .into_par_iter()
-        .map(|c| {
-            let mut b = vec![[[0.0; 2]; 6]; m];
-            for (i, l) in NODES_L.iter().enumerate().take(npe) {
-                Field::at_cell_each(fields, c, *l, |f, v| b[f][i] = v.b);
-            }
-            (b, Geometry::new(d.vertices(c)).area)
-        })
+        .map(|c| Geometry::new(d.vertices(c)).area)
         .collect();
     // area-weighted sums per (node, region): a plain array for nodes inside one region,
     // a map for the few on interfaces
@@ -119,15 +119,15 @@ pub fn recover(fields: &[&Field]) -> Vec<Vec<[[f64; 2]; 6]>> {
             let mut shared: HashMap<(u32, u32), [f64; 3]> = HashMap::new();
             for c in 0..nc {
                 let r = d.cell_region[c];
-                let (b, area) = &local[c];
+                let (b, area) = (&local[c * m + f], areas[c]);
                 for (i, &node) in d.cell(c).iter().enumerate() {
                     let s = if owner[node as usize] == MULTI {
                         shared.entry((node, r)).or_insert([0.0; 3])
                     } else {
                         &mut sum[node as usize]
                     };
-                    s[0] += area * b[f][i][0];
-                    s[1] += area * b[f][i][1];
+                    s[0] += area * b[i][0];
+                    s[1] += area * b[i][1];
                     s[2] += area;
                 }
             }

@@ -304,7 +304,7 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
     }
     let nk = constraints.len();
     let nd = d.n_dofs;
-    let pattern = Pattern::new(&d);
+    let mut pattern = Pattern::new(&d);
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
@@ -347,6 +347,8 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
         }
         Some(m)
     });
+    // K and σM are all a frequency needs (K + jωσM is formed from them)
+    pattern.release_assembly_map();
     // Border: the constraint rows −jω b_kᵀ A + jω d_k ψ_k, b_k = ∫σ N g w, d_k = ∫σ g² w.
     let mut bvec = vec![vec![0.0; nd]; nk];
     let mut dk = vec![0.0; nk];

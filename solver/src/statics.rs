@@ -122,7 +122,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
         })
         .collect::<Result<_, SolveError>>()?;
     let nu = Arc::new(nu);
-    let pattern = Pattern::new(&d);
+    let mut pattern = Pattern::new(&d);
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
@@ -130,6 +130,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     let values = pattern.assemble(d.n_cells(), |c| {
         Some(loc[c].stiffness.iter().flatten().copied().collect())
     });
+    pattern.release_assembly_map();
     // Region measures for the winding densities.
     let mut area = vec![0.0; d.region_count];
     let mut inv_r = vec![0.0; d.region_count];
