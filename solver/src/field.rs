@@ -250,8 +250,9 @@ impl Field {
 
     /// Σ over `pairs` of ∫ν B·B' dV (the real and imaginary parts of a phasor product, say)
     /// in one pass over the cells, the basis evaluated once per point for all the fields;
-    /// deterministic whatever the thread count. A pair with a field that is zero everywhere
-    /// (the imaginary part of a static solve) is left out: it adds nothing.
+    /// deterministic whatever the thread count. All fields are on one discretisation with
+    /// the same reluctivities (the first field's are used). A pair with a field that is zero
+    /// everywhere (the imaginary part of a static solve) is left out: it adds nothing.
     pub fn coenergy_sum(pairs: &[(&Field, &Field)], keep: impl Fn(usize) -> bool + Sync) -> f64 {
         use rayon::prelude::*;
         let pairs: Vec<(&Field, &Field)> = pairs
@@ -284,30 +285,16 @@ impl Field {
             .filter(|&c| keep(c))
             .map(|c| {
                 let area = Geometry::new(first.disc.vertices(c)).area;
-                let mut vals = [PointValue {
-                    x: [0.0; 2],
-                    a: 0.0,
-                    b: [0.0; 2],
-                    weight: 0.0,
-                }; 8];
-                let mut more = Vec::new();
+                let mut vals: Vec<PointValue> = Vec::with_capacity(fields.len());
                 let mut w = 0.0;
                 for q in rule {
-                    Field::at_cell_each(&fields, c, q.l, |k, p| {
-                        if k < 8 {
-                            vals[k] = p;
-                        } else {
-                            more.push(p);
-                        }
-                    });
-                    let at = |k: usize| if k < 8 { vals[k] } else { more[k - 8] };
-                    let v0 = at(0);
-                    let nu = first.nu_at(c, v0.x);
+                    vals.clear();
+                    Field::at_cell_each(&fields, c, q.l, |_, p| vals.push(p));
+                    let nu = first.nu_at(c, vals[0].x);
                     for &(i, j) in &idx {
-                        let (v, u) = (at(i), at(j));
+                        let (v, u) = (vals[i], vals[j]);
                         w += q.w * area * v.weight * nu * (v.b[0] * u.b[0] + v.b[1] * u.b[1]);
                     }
-                    more.clear();
                 }
                 w
             })
