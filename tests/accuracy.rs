@@ -2,9 +2,8 @@
 //! do not come from fluxpick: every pass's true error is computed from the reference, the
 //! loop must stop with the true error within the target, and after the first pass the
 //! estimate must be within a factor of 3 of the true error (effectivity 1/3 to 3). Where a
-//! test says so,
-//! the same case refined uniformly (`model.refinement = "uniform"`) must need more unknowns
-//! than the adaptive loop to reach the adaptive loop's final true error.
+//! test says so, the same case refined uniformly (`model.refinement = "uniform"`) must need
+//! more unknowns than the adaptive loop to reach the adaptive loop's final true error.
 
 mod common;
 use common::*;
