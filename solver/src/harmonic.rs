@@ -304,16 +304,54 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
     }
     let nk = constraints.len();
     let nd = d.n_dofs;
-    let mut pattern = Pattern::new(&d);
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
-    let loc: Vec<Local<N>> = (0..d.n_cells())
-        .into_par_iter()
-        .map(|c| {
-            local_matrices::<N, B>(&d.vertices(c), nu[d.cell_region[c] as usize], d.formulation)
-        })
-        .collect();
+    // the ordering needs only the mesh: it runs beside the assembly
+    let (ordering, (pattern, loc, kvals, mvals)) = rayon::join(
+        || crate::ordering::nested_dissection(&d),
+        || {
+            let mut pattern = Pattern::new(&d);
+            let loc: Vec<Local<N>> = (0..d.n_cells())
+                .into_par_iter()
+                .map(|c| {
+                    local_matrices::<N, B>(
+                        &d.vertices(c),
+                        nu[d.cell_region[c] as usize],
+                        d.formulation,
+                    )
+                })
+                .collect();
+            // K and σM on the node pattern (K + jωσM and K + ωσM are formed per frequency).
+            let kvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
+                let l = &loc[c];
+                let mut m = vec![0.0; N * N];
+                for i in 0..N {
+                    for j in 0..N {
+                        m[i * N + j] = l.stiffness[i][j];
+                    }
+                }
+                Some(m)
+            });
+            let mvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
+                let l = &loc[c];
+                let s = sigma[d.cell_region[c] as usize];
+                if s == 0.0 {
+                    return None;
+                }
+                let mut m = vec![0.0; N * N];
+                for i in 0..N {
+                    for j in 0..N {
+                        m[i * N + j] = s * l.mass[i][j];
+                    }
+                }
+                Some(m)
+            });
+            // K and σM are all a frequency needs (K + jωσM is formed from them)
+            pattern.release_assembly_map();
+            (pattern, loc, kvals, mvals)
+        },
+    );
     let axi = p.formulation == Formulation::Axisymmetric;
     let border = |l: &Local<N>, s: f64| -> [f64; N] {
         let mut b = if axi { l.load_inv_r } else { l.load };
@@ -322,33 +360,6 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
         }
         b
     };
-    // K and σM on the node pattern (K + jωσM and K + ωσM are formed per frequency).
-    let kvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
-        let l = &loc[c];
-        let mut m = vec![0.0; N * N];
-        for i in 0..N {
-            for j in 0..N {
-                m[i * N + j] = l.stiffness[i][j];
-            }
-        }
-        Some(m)
-    });
-    let mvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
-        let l = &loc[c];
-        let s = sigma[d.cell_region[c] as usize];
-        if s == 0.0 {
-            return None;
-        }
-        let mut m = vec![0.0; N * N];
-        for i in 0..N {
-            for j in 0..N {
-                m[i * N + j] = s * l.mass[i][j];
-            }
-        }
-        Some(m)
-    });
-    // K and σM are all a frequency needs (K + jωσM is formed from them)
-    pattern.release_assembly_map();
     // Border: the constraint rows −jω b_kᵀ A + jω d_k ψ_k, b_k = ∫σ N g w, d_k = ∫σ g² w.
     let mut bvec = vec![vec![0.0; nd]; nk];
     let mut dk = vec![0.0; nk];
@@ -464,7 +475,7 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
     }
     t.assemble = t0.elapsed().as_secs_f64();
     let t0 = Instant::now();
-    let analysis = CholeskyAnalysis::new(&pattern)?;
+    let analysis = CholeskyAnalysis::with_ordering(&pattern, ordering?)?;
     t.symbolic = t0.elapsed().as_secs_f64();
     let disc = Arc::new(d);
     let locator = Arc::new(Locator::new(&disc));

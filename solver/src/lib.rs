@@ -53,6 +53,7 @@ pub mod harmonic;
 pub mod krylov;
 pub mod linsolve;
 pub mod nonlinear;
+pub mod ordering;
 pub mod problem;
 pub mod quadrature;
 pub mod sanity;

@@ -309,7 +309,8 @@ fn solve_with<const N: usize, B: Basis<N>>(
         }
         x[dof as usize] = v;
     }
-    let analysis = CholeskyAnalysis::new(&pattern)?;
+    let analysis =
+        CholeskyAnalysis::with_ordering(&pattern, crate::ordering::nested_dissection(&d)?)?;
     let mut res = sys.residual::<B>(&x);
     let scale = norm(&sys.residual::<B>(&vec![0.0; d.n_dofs]))
         .max(norm(&sys.f))

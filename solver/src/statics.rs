@@ -122,15 +122,22 @@ fn solve_with<const N: usize, B: Basis<N>>(
         })
         .collect::<Result<_, SolveError>>()?;
     let nu = Arc::new(nu);
-    let mut pattern = Pattern::new(&d);
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
-    let loc = locals::<N, B>(&nu, &d);
-    let values = pattern.assemble(d.n_cells(), |c| {
-        Some(loc[c].stiffness.iter().flatten().copied().collect())
-    });
-    pattern.release_assembly_map();
+    // the ordering needs only the mesh: it runs beside the assembly
+    let (ordering, (pattern, loc, values)) = rayon::join(
+        || crate::ordering::nested_dissection(&d),
+        || {
+            let mut pattern = Pattern::new(&d);
+            let loc = locals::<N, B>(&nu, &d);
+            let values = pattern.assemble(d.n_cells(), |c| {
+                Some(loc[c].stiffness.iter().flatten().copied().collect())
+            });
+            pattern.release_assembly_map();
+            (pattern, loc, values)
+        },
+    );
     // Region measures for the winding densities.
     let mut area = vec![0.0; d.region_count];
     let mut inv_r = vec![0.0; d.region_count];
@@ -225,7 +232,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
     t.assemble = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
-    let analysis = CholeskyAnalysis::new(&pattern)?;
+    let analysis = CholeskyAnalysis::with_ordering(&pattern, ordering?)?;
     t.symbolic = t0.elapsed().as_secs_f64();
     let t0 = Instant::now();
     let chol = analysis.factor(&pattern, &values)?;
