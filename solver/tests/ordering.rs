@@ -1,10 +1,11 @@
 //! The nested-dissection ordering: a permutation of the unknowns that solves the same system
-//! as minimum degree, with less fill on a mesh of some thousands of vertices.
+//! as minimum degree, with less fill on a mesh of some thousands of vertices; used at second
+//! order (first order keeps minimum degree).
 
 use fluxpick_mesh::{generate, Cuts, MeshParams, MeshSpec, Outer};
 use fluxpick_solver::assembly::Pattern;
 use fluxpick_solver::linsolve::CholeskyAnalysis;
-use fluxpick_solver::ordering::{nested_dissection, MIN_VERTICES};
+use fluxpick_solver::ordering::{dissect, nested_dissection, MIN_VERTICES};
 use fluxpick_solver::{Discretisation, Formulation, Order};
 
 fn disk(max_edge: f64) -> fluxpick_mesh::Mesh {
@@ -41,9 +42,7 @@ fn nested_dissection_solves_like_minimum_degree_with_less_fill() {
     let mesh = disk(0.02);
     for order in [Order::Linear, Order::Quadratic] {
         let d = Discretisation::new(&mesh, Formulation::Planar, order, &[]);
-        let perm = nested_dissection(&d)
-            .unwrap()
-            .expect("large enough to be dissected");
+        let perm = dissect(&d).unwrap().expect("large enough to be dissected");
         let mut seen = vec![false; d.n_dofs];
         for &i in &perm {
             assert!(!seen[i], "{order:?}: unknown {i} twice");
@@ -84,6 +83,14 @@ fn nested_dissection_solves_like_minimum_degree_with_less_fill() {
             amd.factor_nnz()
         );
     }
+}
+
+#[test]
+fn first_order_spaces_keep_minimum_degree() {
+    let mesh = disk(0.02);
+    let d = Discretisation::new(&mesh, Formulation::Planar, Order::Linear, &[]);
+    assert!(dissect(&d).unwrap().is_some());
+    assert!(nested_dissection(&d).unwrap().is_none());
 }
 
 #[test]
