@@ -9,7 +9,7 @@
 //!
 //! Measured on the 1M-unknown planar benchmark (2026-12-03): METIS on the whole second-order
 //! pattern gave 63.5M values in the factor in 10.2 s of ordering; on the vertex graph 56.1M
-//! in well under a second; faer's minimum degree 90.0M. Two nested dissections of our own
+//! in about 1.8 s; faer's minimum degree 90.0M in about 1 s. Two nested dissections of our own
 //! (coordinate bisection; breadth-first level sets) gave more fill than minimum degree: a good
 //! separator needs the multilevel coarsening and refinement METIS does.
 
