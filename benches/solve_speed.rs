@@ -397,17 +397,23 @@ fn sweep_bench() {
     );
 }
 
-/// Triangular-solve cost of a block of right-hand sides against the same number of single
-/// columns, on the factor of a ~250k-unknown second-order stiffness matrix.
-fn block_bench() {
+/// The planar benchmark's second-order space and pattern at mesh sizes `h` (air, wire), with
+/// a symmetric diagonally dominant matrix on it (positive definite on any pattern).
+fn planar_pattern(
+    h: (f64, f64),
+) -> (
+    fluxpick_solver::Discretisation,
+    fluxpick_solver::assembly::Pattern,
+    Vec<f64>,
+) {
     use fluxpick_solver::assembly::Pattern;
-    use fluxpick_solver::linsolve::CholeskyAnalysis;
     use fluxpick_solver::{Discretisation, Formulation, Order};
-    let dir = std::env::temp_dir().join(format!("fluxpick-bench-block-{}", std::process::id()));
+    let dir = std::env::temp_dir().join(format!("fluxpick-bench-pattern-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("b.toml");
-    std::fs::write(&path, planar(3.2, 0.8)).unwrap();
+    let path = dir.join("p.toml");
+    std::fs::write(&path, planar(h.0, h.1)).unwrap();
     let case = load_case(&path).expect("bench case");
+    let _ = std::fs::remove_dir_all(&dir);
     let model = fluxpick::build::Model::new(&case).unwrap();
     let mesh = fluxpick_mesh::generate(&model.spec).unwrap();
     let d = Discretisation::new(
@@ -419,10 +425,20 @@ fn block_bench() {
     let p = Pattern::new(&d);
     let mut values = vec![0.0; p.nnz()];
     for j in 0..p.n {
+        let off = (p.col_ptr[j + 1] - p.col_ptr[j] - 1) as f64;
         for k in p.col_ptr[j]..p.col_ptr[j + 1] {
-            values[k] = if p.row_idx[k] == j { 20.0 } else { -1.0 };
+            values[k] = if p.row_idx[k] == j { off + 0.5 } else { -1.0 };
         }
     }
+    (d, p, values)
+}
+
+/// Triangular-solve cost of a block of right-hand sides against the same number of single
+/// columns, on the factor of a positive definite matrix on a ~250k-unknown second-order
+/// pattern.
+fn block_bench() {
+    use fluxpick_solver::linsolve::CholeskyAnalysis;
+    let (_, p, values) = planar_pattern((3.2, 0.8));
     let a = CholeskyAnalysis::new(&p).unwrap();
     let t0 = Instant::now();
     let f = a.factor(&p, &values).unwrap();
@@ -443,38 +459,14 @@ fn block_bench() {
             single / block
         );
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// The two fill-reducing orderings on the 1M-unknown planar pattern: seconds for the ordering
 /// with the symbolic analysis, values in the factor, seconds for the numeric factorisation.
 fn order_bench() {
-    use fluxpick_solver::assembly::Pattern;
     use fluxpick_solver::linsolve::CholeskyAnalysis;
     use fluxpick_solver::ordering::nested_dissection;
-    use fluxpick_solver::{Discretisation, Formulation, Order};
-    let dir = std::env::temp_dir().join(format!("fluxpick-bench-order-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("o.toml");
-    std::fs::write(&path, planar(1.57, 0.4)).unwrap();
-    let case = load_case(&path).expect("bench case");
-    let model = fluxpick::build::Model::new(&case).unwrap();
-    let mesh = fluxpick_mesh::generate(&model.spec).unwrap();
-    let d = Discretisation::new(
-        &mesh,
-        Formulation::Planar,
-        Order::Quadratic,
-        &model.dirichlet,
-    );
-    let p = Pattern::new(&d);
-    // diagonally dominant: positive definite on any pattern
-    let mut values = vec![0.0; p.nnz()];
-    for j in 0..p.n {
-        let off = (p.col_ptr[j + 1] - p.col_ptr[j] - 1) as f64;
-        for k in p.col_ptr[j]..p.col_ptr[j + 1] {
-            values[k] = if p.row_idx[k] == j { off + 0.5 } else { -1.0 };
-        }
-    }
+    let (d, p, values) = planar_pattern((1.57, 0.4));
     for name in ["minimum degree", "nested dissection"] {
         let t0 = Instant::now();
         let a = if name == "minimum degree" {
@@ -493,7 +485,6 @@ fn order_bench() {
             a.factor_nnz() as f64 / 1e6
         );
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// The prolate spheroid solved to a relative accuracy of 0.1 % by the adaptive loop and by

@@ -64,14 +64,19 @@ pub fn dissect(d: &Discretisation) -> Result<Option<Vec<usize>>, SolveError> {
             gid[dof as usize]
         }
     };
+    // the cell's edges between two vertex unknowns
+    let cell_edges = |c: usize| {
+        let g = [corner(c, 0), corner(c, 1), corner(c, 2)];
+        [(0, 1), (1, 2), (2, 0)]
+            .into_iter()
+            .map(move |(a, b)| (g[a], g[b]))
+            .filter(|&(u, v)| u != NONE && v != NONE && u != v)
+    };
     let mut degree = vec![0u32; nv + 1];
     for c in 0..nc {
-        let g = [corner(c, 0), corner(c, 1), corner(c, 2)];
-        for (a, b) in [(0, 1), (1, 2), (2, 0)] {
-            if g[a] != NONE && g[b] != NONE && g[a] != g[b] {
-                degree[g[a] as usize + 1] += 1;
-                degree[g[b] as usize + 1] += 1;
-            }
+        for (u, v) in cell_edges(c) {
+            degree[u as usize + 1] += 1;
+            degree[v as usize + 1] += 1;
         }
     }
     for i in 0..nv {
@@ -80,13 +85,10 @@ pub fn dissect(d: &Discretisation) -> Result<Option<Vec<usize>>, SolveError> {
     let mut fill: Vec<u32> = degree[..nv].to_vec();
     let mut raw = vec![0u32; degree[nv] as usize];
     for c in 0..nc {
-        let g = [corner(c, 0), corner(c, 1), corner(c, 2)];
-        for (a, b) in [(0, 1), (1, 2), (2, 0)] {
-            if g[a] != NONE && g[b] != NONE && g[a] != g[b] {
-                for (u, v) in [(g[a], g[b]), (g[b], g[a])] {
-                    raw[fill[u as usize] as usize] = v;
-                    fill[u as usize] += 1;
-                }
+        for (a, b) in cell_edges(c) {
+            for (u, v) in [(a, b), (b, a)] {
+                raw[fill[u as usize] as usize] = v;
+                fill[u as usize] += 1;
             }
         }
     }
@@ -144,6 +146,13 @@ pub fn dissect(d: &Discretisation) -> Result<Option<Vec<usize>>, SolveError> {
         }
     }
     if d.order == Order::Quadratic {
+        let position = |g: u32| {
+            if g == NONE {
+                u64::MAX
+            } else {
+                iperm[g as usize] as u64
+            }
+        };
         for c in 0..nc {
             let g = [corner(c, 0), corner(c, 1), corner(c, 2)];
             for (e, (a, b)) in [(3, (0, 1)), (4, (1, 2)), (5, (2, 0))] {
@@ -151,17 +160,7 @@ pub fn dissect(d: &Discretisation) -> Result<Option<Vec<usize>>, SolveError> {
                 if dof == FIXED {
                     continue;
                 }
-                let pa = if g[a] == NONE {
-                    u64::MAX
-                } else {
-                    iperm[g[a] as usize] as u64
-                };
-                let pb = if g[b] == NONE {
-                    u64::MAX
-                } else {
-                    iperm[g[b] as usize] as u64
-                };
-                let k = match pa.min(pb) {
+                let k = match position(g[a]).min(position(g[b])) {
                     u64::MAX => 0,
                     p => 2 * p,
                 };
