@@ -22,7 +22,7 @@
 use std::time::Instant;
 
 use fluxpick::case::load_case;
-use fluxpick::study::run;
+use fluxpick::pipeline::run;
 
 /// Planar round wire (Ampère: B = μ0 I/(2πr) at r = 100 mm, 200 µT for 100 A).
 fn planar(h_air: f64, h_wire: f64) -> String {
@@ -177,7 +177,7 @@ fn one(name: &str) {
     std::fs::write(&path, &text).unwrap();
     let case = load_case(&path).expect("bench case");
     let t0 = Instant::now();
-    let r = run(&case).expect("bench solve");
+    let r = run(&case, &Default::default()).expect("bench solve");
     let t1 = Instant::now();
     fluxpick::output::write_results_json(&dir.join("results.json"), &r.results).unwrap();
     fluxpick::output::write_field_vtu(&dir.join("field.vtu"), &case, &r).unwrap();
@@ -191,8 +191,9 @@ fn one(name: &str) {
         }
         "rac" => r.results.conductors["wire"]
             .ac_dc_ratio
+            .value
             .expect("a ratio at 60 Hz"),
-        _ => r.results.parts["spheroid"].b_mean_t / 1e-3,
+        _ => r.results.parts["spheroid"].b_mean_t.value / 1e-3,
     };
     println!(
         "ROW {name} {} {} {} {} {} {} {} {write} {total} {} {}",
@@ -316,7 +317,7 @@ fn eddy_bench() {
     std::fs::write(&path, eddy(5.8)).unwrap();
     let case = load_case(&path).expect("bench case");
     let t0 = Instant::now();
-    let r = run(&case).expect("bench solve");
+    let r = run(&case, &Default::default()).expect("bench solve");
     let total = t0.elapsed().as_secs_f64();
     let s = &r.results.solve;
     println!(
@@ -388,7 +389,7 @@ fn sweep_bench() {
     let raw = fluxpick::case::parse_str("rod-aspect-study", &text).expect("parse");
     let case = fluxpick::case::resolve(&raw, &src, &Default::default()).expect("resolve");
     let t0 = Instant::now();
-    let rec = fluxpick::sweep::run_sweep(&raw, &src, &case, None, false);
+    let rec = fluxpick::sweep::run_sweep(&raw, &src, &case, None, &Default::default(), &|| ());
     let secs = t0.elapsed().as_secs_f64();
     let failed = rec.points.iter().filter(|p| p.error.is_some()).count();
     println!(
@@ -507,7 +508,7 @@ fn adapt_bench() {
         std::fs::write(&path, text).unwrap();
         let case = load_case(&path).expect("bench case");
         let t0 = Instant::now();
-        let r = run(&case).expect("bench solve");
+        let r = run(&case, &Default::default()).expect("bench solve");
         let secs = t0.elapsed().as_secs_f64();
         let acc = r.results.accuracy.as_ref().expect("accuracy report");
         for (k, p) in acc.refinement.iter().enumerate() {

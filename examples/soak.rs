@@ -263,8 +263,8 @@ fn main() {
                 std::process::exit(1);
             }
         };
-        eddy += usize::from(fluxpick::study::has_eddy_currents(&case));
-        let run = match fluxpick::study::run(&case) {
+        eddy += usize::from(fluxpick::pipeline::has_eddy_currents(&case));
+        let run = match fluxpick::pipeline::run(&case, &Default::default()) {
             Ok(r) => r,
             Err(e) => {
                 eprintln!("solve {k} failed: {e}\n{text}");

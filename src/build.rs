@@ -60,9 +60,17 @@ pub struct SkinLayer {
     pub surface_size_m: f64,
 }
 
-/// Skin depth δ = √(2/(ωμσ)) (m).
-pub fn skin_depth(frequency: f64, mu_r: f64, sigma: f64) -> f64 {
-    (2.0 / (std::f64::consts::TAU * frequency * fluxpick_solver::MU0 * mu_r * sigma)).sqrt()
+pub use fluxpick_postproc::design::skin_depth;
+
+/// Does the case need the time-harmonic solve (eddy currents somewhere)?
+pub fn has_eddy_currents(case: &Case) -> bool {
+    let sigma = |m: &str| case.materials.get(m).map_or(0.0, |m| m.conductivity);
+    case.frequency > 0.0
+        && (case.parts.iter().any(|p| sigma(&p.material) > 0.0)
+            || case
+                .conductors
+                .iter()
+                .any(|c| c.kind == ConductorKind::Solid && sigma(&c.material) > 0.0))
 }
 
 /// Default surface element size as a fraction of the skin depth, by element order
@@ -332,6 +340,20 @@ impl Model {
             }
         }
         out
+    }
+
+    /// Region names for output: "air", part/conductor names, "coil/side", "exterior".
+    pub fn region_names(&self, case: &Case) -> Vec<String> {
+        self.owners
+            .iter()
+            .map(|o| match *o {
+                Owner::Air => "air".to_string(),
+                Owner::Part(i) => case.parts[i].name.clone(),
+                Owner::Conductor(i) => case.conductors[i].name.clone(),
+                Owner::CoilSide(i, k, _) => format!("{}/{}", case.coils[i].name, k),
+                Owner::Exterior => "exterior".to_string(),
+            })
+            .collect()
     }
 
     /// Region ids owned by a part, a conductor or a coil.

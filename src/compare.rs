@@ -6,17 +6,19 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
-use crate::output::eng;
-use crate::study::{self, Results};
+use crate::error::RunError;
+use crate::format::eng;
+use crate::pipeline::{self, Results};
+use crate::settings::Settings;
 use fluxpick_postproc::atomic_write;
 
 /// One case's line of the comparison.
 #[derive(serde::Serialize)]
-struct Row {
-    file: String,
-    coil: String,
-    figures: Option<Results>,
-    error: Option<String>,
+pub struct Row {
+    pub file: String,
+    pub coil: String,
+    pub figures: Option<Results>,
+    pub error: Option<String>,
 }
 
 /// The coil a comparison is about: the `[circuit]` coil, else the first open-circuit one,
@@ -91,17 +93,31 @@ fn cell(row: &Row, key: &str) -> String {
     }
 }
 
-pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Result<(), i32> {
+/// A comparison: the rows ranked by `rank_by`, highest first.
+#[derive(serde::Serialize)]
+pub struct CompareRecord {
+    pub rank_by: String,
+    pub rows: Vec<Row>,
+}
+
+impl CompareRecord {
+    /// Rows whose case failed to solve.
+    pub fn failed(&self) -> impl Iterator<Item = &Row> {
+        self.rows.iter().filter(|r| r.error.is_some())
+    }
+}
+
+/// Loads `cases`, solves them in parallel and ranks them by the coil figure `rank`.
+pub fn compare(
+    cases: &[std::path::PathBuf],
+    rank: &str,
+    settings: &Settings,
+) -> Result<CompareRecord, RunError> {
     let mut loaded = Vec::new();
     for p in cases {
-        let c = crate::case::load_case(p).map_err(|e| {
-            eprintln!("{:?}", miette::Report::new(e));
-            2
-        })?;
-        let coil = chosen_coil(&c).ok_or_else(|| {
-            eprintln!("error: {}: no [[coil]] to compare", p.display());
-            2
-        })?;
+        let c = crate::case::load_case(p)?;
+        let coil = chosen_coil(&c)
+            .ok_or_else(|| RunError::Input(format!("{}: no [[coil]] to compare", p.display())))?;
         loaded.push((p.display().to_string(), coil, c));
     }
     let rank_known = COLUMNS.iter().any(|(k, _)| *k == rank)
@@ -113,15 +129,14 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
         let names: Vec<&str> = COLUMNS.iter().map(|c| c.0).collect();
         let near = crate::case::error::nearest(rank, names.iter().copied())
             .map_or(String::new(), |m| format!("did you mean `--rank {m}`? "));
-        eprintln!(
-            "error: --rank {rank}: not a coil figure\n  help: {near}use one of {}",
+        return Err(RunError::Input(format!(
+            "--rank {rank}: not a coil figure\n  help: {near}use one of {}",
             names.join(", ")
-        );
-        return Err(2);
+        )));
     }
     let mut rows: Vec<Row> = loaded
         .par_iter()
-        .map(|(file, coil, c)| match study::run(c) {
+        .map(|(file, coil, c)| match pipeline::run(c, settings) {
             Ok(r) => Row {
                 file: file.clone(),
                 coil: coil.clone(),
@@ -143,14 +158,21 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
         (None, Some(_)) => std::cmp::Ordering::Greater,
         (None, None) => std::cmp::Ordering::Equal,
     });
-    // terminal
+    Ok(CompareRecord {
+        rank_by: rank.to_string(),
+        rows,
+    })
+}
+
+/// The comparison as a terminal table.
+pub fn table(rec: &CompareRecord) -> String {
     let mut t = String::new();
     let _ = write!(t, "{:<4} {:<28} {:<10}", "rank", "case", "coil");
     for (_, h) in COLUMNS {
         let _ = write!(t, " {h:>11}");
     }
     t.push('\n');
-    for (i, r) in rows.iter().enumerate() {
+    for (i, r) in rec.rows.iter().enumerate() {
         let name = Path::new(&r.file)
             .file_name()
             .map_or(r.file.clone(), |n| n.to_string_lossy().into_owned());
@@ -160,66 +182,50 @@ pub fn run(cases: &[std::path::PathBuf], rank: &str, out: Option<&Path>) -> Resu
         }
         t.push('\n');
     }
-    crate::ui::out(&t);
-    crate::say!("ranked by {rank}, highest first; masses in grams; R is winding + induced");
-    for r in rows.iter().filter(|r| r.error.is_some()) {
-        eprintln!("{}: failed: {}", r.file, r.error.as_deref().unwrap_or(""));
-    }
-    if crate::ui::json() {
-        let v = serde_json::json!({ "rank_by": rank, "rows": rows });
-        println!("{}", serde_json::to_string_pretty(&v).unwrap_or_default());
-    }
-    if let Some(dir) = out {
-        std::fs::create_dir_all(dir).map_err(|e| {
-            eprintln!("error: cannot create {}: {e}", dir.display());
-            1
-        })?;
-        let mut md = String::from("| rank | case | coil |");
-        for (k, h) in COLUMNS {
-            let u = unit(k);
-            let _ = write!(
-                md,
-                " {h}{} |",
-                if u.is_empty() {
-                    String::new()
-                } else {
-                    format!(" ({u})")
-                }
-            );
-        }
-        md.push_str("\n|---|---|---|");
-        md.push_str(&"---:|".repeat(COLUMNS.len()));
-        md.push('\n');
-        let mut w = csv::Writer::from_writer(Vec::new());
-        let mut header = vec!["rank".to_string(), "case".into(), "coil".into()];
-        header.extend(COLUMNS.iter().map(|c| c.0.to_string()));
-        header.push("error".into());
-        let _ = w.write_record(&header);
-        for (i, r) in rows.iter().enumerate() {
-            let _ = write!(md, "| {} | {} | {} |", i + 1, r.file, r.coil);
-            let mut rec = vec![(i + 1).to_string(), r.file.clone(), r.coil.clone()];
-            for (k, _) in COLUMNS {
-                let _ = write!(md, " {} |", cell(r, k));
-                rec.push(value(r, k).map_or(String::new(), |v| format!("{v:e}")));
+    t
+}
+
+/// Writes `DIR/compare.md` and `DIR/compare.csv`.
+pub fn write_files(dir: &Path, rec: &CompareRecord) -> Result<(), RunError> {
+    std::fs::create_dir_all(dir)
+        .map_err(|e| RunError::Write(format!("cannot create {}: {e}", dir.display())))?;
+    let mut md = String::from("| rank | case | coil |");
+    for (k, h) in COLUMNS {
+        let u = unit(k);
+        let _ = write!(
+            md,
+            " {h}{} |",
+            if u.is_empty() {
+                String::new()
+            } else {
+                format!(" ({u})")
             }
-            md.push('\n');
-            rec.push(r.error.clone().unwrap_or_default());
-            let _ = w.write_record(&rec);
+        );
+    }
+    md.push_str("\n|---|---|---|");
+    md.push_str(&"---:|".repeat(COLUMNS.len()));
+    md.push('\n');
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let mut header = vec!["rank".to_string(), "case".into(), "coil".into()];
+    header.extend(COLUMNS.iter().map(|c| c.0.to_string()));
+    header.push("error".into());
+    let _ = w.write_record(&header);
+    for (i, r) in rec.rows.iter().enumerate() {
+        let _ = write!(md, "| {} | {} | {} |", i + 1, r.file, r.coil);
+        let mut line = vec![(i + 1).to_string(), r.file.clone(), r.coil.clone()];
+        for (k, _) in COLUMNS {
+            let _ = write!(md, " {} |", cell(r, k));
+            line.push(value(r, k).map_or(String::new(), |v| format!("{v:e}")));
         }
-        let csv = w.into_inner().unwrap_or_default();
-        let write = |name: &str, bytes: &[u8]| {
-            atomic_write(&dir.join(name), bytes).map_err(|e| {
-                eprintln!("error: cannot write {}: {e}", dir.join(name).display());
-                1
-            })
-        };
-        write("compare.md", md.as_bytes())?;
-        write("compare.csv", &csv)?;
-        crate::say!("wrote {}/compare.md and compare.csv", dir.display());
+        md.push('\n');
+        line.push(r.error.clone().unwrap_or_default());
+        let _ = w.write_record(&line);
     }
-    if rows.iter().any(|r| r.error.is_some()) {
-        Err(1)
-    } else {
-        Ok(())
-    }
+    let csv = w.into_inner().unwrap_or_default();
+    let write = |name: &str, bytes: &[u8]| {
+        atomic_write(&dir.join(name), bytes)
+            .map_err(|e| RunError::Write(format!("cannot write {}: {e}", dir.join(name).display())))
+    };
+    write("compare.md", md.as_bytes())?;
+    write("compare.csv", &csv)
 }

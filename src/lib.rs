@@ -6,22 +6,21 @@
 //! Studies of many solves are in [`sweep`]. The command-line front end is [`cli`];
 //! `src/main.rs` only calls it.
 
-pub mod adapt;
 pub mod build;
 pub mod case;
 pub mod cli;
 pub mod compare;
+pub mod error;
+pub mod format;
 pub mod interrupt;
-pub mod journal;
 pub mod limits;
 pub mod lint;
 pub mod map;
 pub mod output;
 pub mod picture;
-pub mod runtime;
+pub mod pipeline;
 pub mod sanity;
 pub mod schema;
+pub mod settings;
 pub mod starters;
-pub mod study;
 pub mod sweep;
-pub mod ui;

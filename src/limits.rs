@@ -7,10 +7,8 @@
 //! `--max-memory GB` when given, else [`AVAILABLE_SHARE`] of the memory the kernel reports
 //! available (`MemAvailable` in /proc/meminfo) when the process starts; a sweep shares it
 //! among the points it solves at once. `--max-triangles N` caps the triangle count too.
-//! The settings are process-wide (the CLI sets them once, from its global options); without
-//! them, library callers get the defaults.
-
-use std::sync::RwLock;
+//! The limits are a value ([`Limits`]) that the command line resolves once and passes down
+//! in the run's settings (`Settings`).
 
 use crate::case::{element_shares, Case, Share};
 
@@ -35,37 +33,44 @@ pub const BYTES_PER_TRIANGLE_EDDY_P2: f64 = 8000.0;
 /// Peak memory per estimated triangle, bytes: eddy-current solves, 1st order.
 pub const BYTES_PER_TRIANGLE_EDDY_P1: f64 = 2600.0;
 
+/// The resource limits of a run, resolved once from the command line and passed down.
 #[derive(Clone, Debug, PartialEq)]
-struct Settings {
-    max_triangles: Option<f64>,
-    max_memory_bytes: Option<f64>,
-    concurrent: usize,
+pub struct Limits {
+    /// `--max-triangles`.
+    pub max_triangles: Option<f64>,
+    /// `--max-memory` (bytes); None: [`AVAILABLE_SHARE`] of the memory available.
+    pub max_memory_bytes: Option<f64>,
+    /// How many solves run at once (a sweep's threads): each gets its share of the memory.
+    pub concurrent: usize,
 }
 
-static SETTINGS: RwLock<Settings> = RwLock::new(Settings {
-    max_triangles: None,
-    max_memory_bytes: None,
-    concurrent: 1,
-});
-
-fn settings() -> Settings {
-    SETTINGS.read().unwrap_or_else(|e| e.into_inner()).clone()
+impl Default for Limits {
+    fn default() -> Self {
+        Limits {
+            max_triangles: None,
+            max_memory_bytes: None,
+            concurrent: 1,
+        }
+    }
 }
 
-/// Sets the limits from the command line: `max_triangles`, and `max_memory_gb` (10⁹ bytes)
-/// instead of the share of the available memory.
-pub fn configure(max_triangles: Option<u64>, max_memory_gb: Option<f64>) {
-    let mut s = SETTINGS.write().unwrap_or_else(|e| e.into_inner());
-    s.max_triangles = max_triangles.map(|n| n as f64);
-    s.max_memory_bytes = max_memory_gb.map(|g| g * 1e9);
-}
+impl Limits {
+    /// The limits of `--max-triangles N` and `--max-memory GB` (10⁹ bytes).
+    pub fn new(max_triangles: Option<u64>, max_memory_gb: Option<f64>) -> Limits {
+        Limits {
+            max_triangles: max_triangles.map(|n| n as f64),
+            max_memory_bytes: max_memory_gb.map(|g| g * 1e9),
+            concurrent: 1,
+        }
+    }
 
-/// How many solves run at once (a sweep's threads): each gets its share of the memory.
-pub fn set_concurrent_solves(n: usize) {
-    SETTINGS
-        .write()
-        .unwrap_or_else(|e| e.into_inner())
-        .concurrent = n.max(1);
+    /// The same limits shared by `n` solves at once.
+    pub fn shared_by(&self, n: usize) -> Limits {
+        Limits {
+            concurrent: n.max(1),
+            ..self.clone()
+        }
+    }
 }
 
 /// `MemAvailable` of /proc/meminfo, bytes (None where there is no such file).
@@ -95,7 +100,7 @@ pub struct Estimate {
 /// The rough triangle count and peak memory of one solve of `case`.
 pub fn estimate(case: &Case) -> Estimate {
     let triangles = crate::case::estimated_elements(case);
-    let eddy = crate::study::has_eddy_currents(case);
+    let eddy = crate::build::has_eddy_currents(case);
     let per = match (eddy, case.element_order) {
         (false, 1) => BYTES_PER_TRIANGLE_STATIC_P1,
         (false, _) => BYTES_PER_TRIANGLE_STATIC_P2,
@@ -134,8 +139,7 @@ fn gb(b: f64) -> String {
 }
 
 /// Refuses `case` when its estimate passes the triangle or memory limit.
-pub fn check(case: &Case) -> Result<(), TooLarge> {
-    let s = settings();
+pub fn check(case: &Case, s: &Limits) -> Result<(), TooLarge> {
     let est = estimate(case);
     let (memory, from) = match s.max_memory_bytes {
         Some(m) => (Some(m), "--max-memory".to_string()),

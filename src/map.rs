@@ -23,9 +23,12 @@ use std::path::Path;
 use serde::Serialize;
 
 use crate::case::{load_case, Case, ProbeKind, Symmetry};
-use crate::output::eng;
-use crate::study::{self, field_ellipse};
+use crate::error::RunError;
+use crate::format::eng;
+use crate::pipeline;
+use crate::settings::Settings;
 use fluxpick_postproc::atomic_write;
+use fluxpick_postproc::design::field_ellipse;
 use fluxpick_postproc::probe;
 use fluxpick_postproc::vtk::{DataArray, Grid, VTK_TRIANGLE};
 
@@ -59,13 +62,16 @@ pub struct MapRecord {
     pub points: Vec<MapPoint>,
 }
 
-fn fail(msg: String) -> i32 {
-    eprintln!("error: {msg}");
-    2
+fn fail(msg: String) -> RunError {
+    RunError::Input(msg)
 }
 
 /// The pickup's figures: (A_eq, L, R, core length along the axis, outer radius).
-fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64, f64), i32> {
+fn pickup_figures(
+    path: &Path,
+    case: &Case,
+    settings: &Settings,
+) -> Result<(f64, f64, f64, f64, f64), RunError> {
     if case.symmetry != Symmetry::Axisymmetric || case.background.is_none() {
         return Err(fail(format!(
             "{}: the pickup case must be axisymmetric with a [background] axial field (it gives the coil's equivalent area)",
@@ -83,12 +89,12 @@ fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64, f64),
                 path.display()
             ))
         })?;
-    let run = study::run(case).map_err(|e| {
-        eprintln!("error: {}: {e}", path.display());
-        e.exit_code()
+    let run = pipeline::run(case, settings).map_err(|e| RunError::Study {
+        file: path.display().to_string(),
+        source: e,
     })?;
     let c = &run.results.coils[&coil];
-    let a_eq = c.equivalent_area_m2.unwrap_or(0.0);
+    let a_eq = c.equivalent_area_m2.value.unwrap_or(0.0);
     // the core's length: the span in z of the coil's core parts, or of the coil window
     let mut z = (f64::INFINITY, f64::NEG_INFINITY);
     let parts: Vec<&crate::case::Part> = case
@@ -106,42 +112,48 @@ fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64, f64),
         parts.iter().map(|p| &p.shape).collect()
     };
     for s in shapes {
-        let (lo, hi) = crate::study::shape_bbox(s);
+        let (lo, hi) = crate::pipeline::shape_bbox(s);
         z = (z.0.min(lo[1]), z.1.max(hi[1]));
     }
     // outer radius of the pickup: its coil windows and core parts
     let mut radius: f64 = 0.0;
     for k in case.coils.iter().filter(|k| k.name == coil) {
         for (s, _) in k.window.shapes() {
-            radius = radius.max(crate::study::shape_bbox(s).1[0]);
+            radius = radius.max(crate::pipeline::shape_bbox(s).1[0]);
         }
     }
     for p in &parts {
-        radius = radius.max(crate::study::shape_bbox(&p.shape).1[0]);
+        radius = radius.max(crate::pipeline::shape_bbox(&p.shape).1[0]);
     }
     Ok((
         a_eq,
-        c.inductance_h,
+        c.inductance_h.value,
         c.resistance_ohm + c.eddy_resistance_ohm,
         (z.1 - z.0).max(0.0),
         radius,
     ))
 }
 
-pub fn run(
+/// A placement map: its record and what its files need.
+pub struct MapStudy {
+    pub record: MapRecord,
+    /// The probe's points (all, also those left out of the record) and the probe.
+    pub points: Vec<[f64; 2]>,
+    pub probe: crate::case::Probe,
+    /// The survey's solve.
+    pub run: pipeline::Run,
+}
+
+/// Solves the pickup and the survey and maps the pickup over the survey probe's points.
+pub fn map(
     survey_path: &Path,
     pickup_path: &Path,
     probe_name: Option<&str>,
     axis_deg: f64,
-    best: usize,
-    out: &Path,
-) -> Result<(), i32> {
-    let report = |e: crate::case::CaseError| {
-        eprintln!("{:?}", miette::Report::new(e));
-        2
-    };
-    let survey = load_case(survey_path).map_err(report)?;
-    let pickup = load_case(pickup_path).map_err(report)?;
+    settings: &Settings,
+) -> Result<MapStudy, RunError> {
+    let survey = load_case(survey_path)?;
+    let pickup = load_case(pickup_path)?;
     if survey.symmetry != Symmetry::Planar || survey.frequency <= 0.0 {
         return Err(fail(format!(
             "{}: the survey case must be planar with a frequency > 0 (the field the pickup sits in)",
@@ -168,10 +180,10 @@ pub fn run(
             probe_name.map_or(String::new(), |n| format!(" named `{n}`"))
         ))
     })?;
-    let (a_eq, l, r, core_len, radius) = pickup_figures(pickup_path, &pickup)?;
-    let run = study::run(&survey).map_err(|e| {
-        eprintln!("error: {}: {e}", survey_path.display());
-        e.exit_code()
+    let (a_eq, l, r, core_len, radius) = pickup_figures(pickup_path, &pickup, settings)?;
+    let run = pipeline::run(&survey, settings).map_err(|e| RunError::Study {
+        file: survey_path.display().to_string(),
+        source: e,
     })?;
     let omega = std::f64::consts::TAU * survey.frequency;
     let pts = match probe.kind {
@@ -255,20 +267,25 @@ pub fn run(
         probe: probe.name.clone(),
         points,
     };
-    write_outputs(out, &rec, &pts, probe, &run).map_err(|e| {
-        eprintln!("error: {e}");
-        1
-    })?;
-    if crate::ui::json() {
-        println!("{}", serde_json::to_string_pretty(&rec).unwrap_or_default());
-    }
-    // summary: the best positions
-    crate::say!(
+    Ok(MapStudy {
+        record: rec,
+        points: pts,
+        probe: probe.clone(),
+        run,
+    })
+}
+
+/// The terminal summary of a map: the pickup, the `best` positions and a caution.
+pub fn summary(m: &MapStudy, best: usize, out: &Path) -> String {
+    let rec = &m.record;
+    let mut t = String::new();
+    let _ = writeln!(
+        t,
         "pickup {}: equivalent area {:.4e} m², L {}, R {}; survey {} at {} Hz, {} points of probe `{}`",
         rec.pickup,
-        a_eq,
-        eng(l, "H"),
-        eng(r, "Ω"),
+        rec.equivalent_area_m2,
+        eng(rec.inductance_h, "H"),
+        eng(rec.resistance_ohm, "Ω"),
         rec.survey,
         rec.frequency_hz,
         rec.points.len(),
@@ -276,18 +293,14 @@ pub fn run(
     );
     let mut order: Vec<&MapPoint> = rec.points.iter().collect();
     order.sort_by(|a, b| b.emf_best_v.total_cmp(&a.emf_best_v));
-    crate::say!(
+    let _ = writeln!(
+        t,
         "{:>4} {:>10} {:>10} {:>12} {:>8} {:>12} {:>12}  note",
-        "rank",
-        "x (m)",
-        "y (m)",
-        "EMF best",
-        "axis °",
-        "P matched",
-        "EMF fixed"
+        "rank", "x (m)", "y (m)", "EMF best", "axis °", "P matched", "EMF fixed"
     );
     for (i, p) in order.iter().take(best).enumerate() {
-        crate::say!(
+        let _ = writeln!(
+            t,
             "{:>4} {:>10.4} {:>10.4} {:>12} {:>8.1} {:>12} {:>12}  {}",
             i + 1,
             p.x_m,
@@ -304,20 +317,27 @@ pub fn run(
         );
     }
     if order.first().is_some_and(|p| p.emf_best_v > 50.0) {
-        crate::say!(
+        let _ = writeln!(
+            t,
             "caution: EMF above 50 V at the best positions; a tuned pickup's capacitor sees about Q times that. Treat the coil and its circuit as hazardous, and follow local rules for work near live conductors"
         );
     }
-    crate::say!(
+    let _ = writeln!(
+        t,
         "wrote {}/map.csv, map.json, map.svg{}",
         out.display(),
-        if matches!(probe.kind, ProbeKind::Grid { .. }) {
+        if matches!(m.probe.kind, ProbeKind::Grid { .. }) {
             " and map.vtu"
         } else {
             ""
         }
     );
-    Ok(())
+    t
+}
+
+/// Writes `DIR/map.csv`, `map.json`, `map.svg` and, for a grid probe, `map.vtu`.
+pub fn write_files(out: &Path, m: &MapStudy) -> Result<(), RunError> {
+    write_outputs(out, &m.record, &m.points, &m.probe, &m.run).map_err(RunError::Write)
 }
 
 fn write_outputs(
@@ -325,7 +345,7 @@ fn write_outputs(
     rec: &MapRecord,
     pts: &[[f64; 2]],
     probe: &crate::case::Probe,
-    run: &study::Run,
+    run: &pipeline::Run,
 ) -> Result<(), String> {
     std::fs::create_dir_all(out).map_err(|e| format!("cannot create {}: {e}", out.display()))?;
     let mut w = csv::Writer::from_writer(Vec::new());
@@ -400,7 +420,7 @@ fn write_outputs(
 
 /// Heat map of the best-orientation EMF over a grid probe (or EMF along a line probe),
 /// with the survey's outlines.
-fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &study::Run) -> String {
+fn map_svg(rec: &MapRecord, probe: &crate::case::Probe, run: &pipeline::Run) -> String {
     let mut s = String::new();
     match probe.kind {
         ProbeKind::Grid {

@@ -11,22 +11,8 @@ use fluxpick_solver::{Order, MU0};
 
 use crate::build::{Model, Owner};
 use crate::case::Case;
-use crate::study::{Results, Run};
-
-/// Region names for output: "air", part/conductor names, "coil/side", "exterior".
-pub fn region_names(case: &Case, model: &Model) -> Vec<String> {
-    model
-        .owners
-        .iter()
-        .map(|o| match *o {
-            Owner::Air => "air".to_string(),
-            Owner::Part(i) => case.parts[i].name.clone(),
-            Owner::Conductor(i) => case.conductors[i].name.clone(),
-            Owner::CoilSide(i, k, _) => format!("{}/{}", case.coils[i].name, k),
-            Owner::Exterior => "exterior".to_string(),
-        })
-        .collect()
-}
+use crate::format::{duration, eng, pm};
+use crate::pipeline::{Results, Run};
 
 fn material_index(case: &Case, model: &Model) -> Vec<f64> {
     let names: Vec<&String> = case.materials.keys().collect();
@@ -186,64 +172,30 @@ pub fn write_results_json(path: &Path, results: &Results) -> std::io::Result<()>
     atomic_write(path, format!("{text}\n").as_bytes())
 }
 
-/// A duration in the unit a person would use: s, min, h or days.
-pub fn duration(t: f64) -> String {
-    if t < 120.0 {
-        eng(t, "s")
-    } else if t < 7200.0 {
-        format!("{:.1} min", t / 60.0)
-    } else if t < 172_800.0 {
-        format!("{:.1} h", t / 3600.0)
-    } else {
-        format!("{:.1} days", t / 86_400.0)
-    }
-}
-
-/// Engineering notation with SI prefix: `eng(2.5e-5, "H")` = "25.0 µH".
-pub fn eng(v: f64, unit: &str) -> String {
-    if v == 0.0 || !v.is_finite() {
-        return format!("{v} {unit}");
-    }
-    const P: [(f64, &str); 9] = [
-        (1e9, "G"),
-        (1e6, "M"),
-        (1e3, "k"),
-        (1.0, ""),
-        (1e-3, "m"),
-        (1e-6, "µ"),
-        (1e-9, "n"),
-        (1e-12, "p"),
-        (1e-15, "f"),
-    ];
-    let a = v.abs();
-    let (s, p) = P
-        .iter()
-        .find(|(s, _)| a >= *s * 0.999_5)
-        .copied()
-        .unwrap_or((1e-15, "f"));
-    let x = v / s;
-    let digits = if x.abs() >= 100.0 {
-        1
-    } else if x.abs() >= 10.0 {
-        2
-    } else {
-        3
-    };
-    format!("{x:.digits$} {p}{unit}")
-}
-
-/// " ± x %" for an estimated relative error (empty without one).
-fn pm(err: Option<f64>) -> String {
-    match err {
-        Some(e) if e >= 0.01 => format!(" ± {:.1} %", 100.0 * e),
-        Some(e) if e >= 1e-4 => format!(" ± {:.2} %", 100.0 * e),
-        Some(e) => format!(" ± {:.0e} %", 100.0 * e),
-        None => String::new(),
-    }
-}
-
 /// The terminal summary of a solve.
 pub fn summary(r: &Results) -> String {
+    let mut s = summary_head(r);
+    for (name, c) in &r.coils {
+        s += &coil_summary(name, c, r.frequency_hz > 0.0);
+    }
+    s += &summary_tables(r);
+    for k in &r.skin_layers {
+        let _ = writeln!(
+            s,
+            "skin depth in {}: {} (surface elements {})",
+            k.name,
+            eng(k.skin_depth_m, "m"),
+            eng(k.surface_element_m, "m")
+        );
+    }
+    for w in &r.warnings {
+        let _ = writeln!(s, "warning: {w}");
+    }
+    s
+}
+
+/// The title, mesh, times, accuracy and energy lines of the summary.
+fn summary_head(r: &Results) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "{} ({}, {} Hz)", r.title, r.symmetry, r.frequency_hz);
     let _ = writeln!(
@@ -273,96 +225,105 @@ pub fn summary(r: &Results) -> String {
     let _ = writeln!(
         s,
         "stored energy {}{}",
-        eng(r.energy_j, "J"),
-        pm(r.energy_j_err)
+        eng(r.energy_j.value, "J"),
+        pm(r.energy_j.err)
     );
+    s
+}
+
+/// The lines of one coil in the summary.
+fn coil_summary(name: &str, c: &fluxpick_postproc::design::CoilFigures, ac: bool) -> String {
+    let mut s = String::new();
     let na = |v: Option<f64>, u: &str| v.map_or("n/a".to_string(), |v| eng(v, u));
-    let ac = r.frequency_hz > 0.0;
-    for (name, c) in &r.coils {
+    let _ = writeln!(
+        s,
+        "\ncoil {name}: {} turns of {} wire, {} long, {} copper; window holds {:.0} turns at its fill factor",
+        c.turns,
+        eng(c.wire_diameter_m, "m"),
+        eng(c.wire_length_m, "m"),
+        eng(c.copper_mass_kg * 1e3, "g"),
+        c.turns_that_fit
+    );
+    if ac {
         let _ = writeln!(
             s,
-            "\ncoil {name}: {} turns of {} wire, {} long, {} copper; window holds {:.0} turns at its fill factor",
-            c.turns,
-            eng(c.wire_diameter_m, "m"),
-            eng(c.wire_length_m, "m"),
-            eng(c.copper_mass_kg * 1e3, "g"),
-            c.turns_that_fit
+            "  flux linkage {}{} at {:.1}°, EMF {} rms at {:.1}°",
+            eng(c.flux_linkage_wb.value, "Wb"),
+            pm(c.flux_linkage_wb.err),
+            c.flux_linkage_wb_phase_deg,
+            eng(c.emf_v.value, "V"),
+            c.emf_v_phase_deg
         );
-        if ac {
-            let _ = writeln!(
-                s,
-                "  flux linkage {}{} at {:.1}°, EMF {} rms at {:.1}°",
-                eng(c.flux_linkage_wb, "Wb"),
-                pm(c.flux_linkage_wb_err),
-                c.flux_linkage_wb_phase_deg,
-                eng(c.emf_v, "V"),
-                c.emf_v_phase_deg
-            );
-        } else {
-            let _ = writeln!(
-                s,
-                "  flux linkage {}{}",
-                eng(c.flux_linkage_wb, "Wb"),
-                pm(c.flux_linkage_wb_err)
-            );
-        }
+    } else {
         let _ = writeln!(
             s,
-            "  L {}{} (energy check {}), R {} winding + {} induced, Q {}",
-            eng(c.inductance_h, "H"),
-            pm(c.inductance_h_err),
-            eng(c.inductance_energy_h, "H"),
-            eng(c.resistance_ohm, "Ω"),
-            eng(c.eddy_resistance_ohm, "Ω"),
-            c.q.map_or("n/a".to_string(), |q| format!("{q:.1}"))
+            "  flux linkage {}{}",
+            eng(c.flux_linkage_wb.value, "Wb"),
+            pm(c.flux_linkage_wb.err)
         );
-        if ac {
-            let _ = writeln!(
-                s,
-                "  tuning {}: C {} (series {}, parallel {}), capacitor voltage at resonance {}",
-                c.tuning,
-                na(c.tuning_capacitance_f, "F"),
-                na(c.series_capacitance_f, "F"),
-                na(c.parallel_capacitance_f, "F"),
-                na(c.capacitor_voltage_v, "V")
-            );
-            let load = match c.load_ohm {
-                Some(x) => format!("into {}: {}", eng(x, "Ω"), na(c.load_power_w, "W")),
-                None => "into a matched load".into(),
-            };
-            let _ = writeln!(
-                s,
-                "  power matched {}{}, {load}",
-                na(c.matched_power_w, "W"),
-                pm(c.matched_power_w_err)
-            );
-            if let Some(e) = c.storage_energy_j {
-                let _ = writeln!(
-                    s,
-                    "  storage {} charged in {} (ideal rectifier)",
-                    eng(e, "J"),
-                    c.charge_time_s.map_or("n/a".to_string(), duration)
-                );
-            }
-            if c.power_per_cm3_w.is_some() || c.power_per_gram_w.is_some() {
-                let _ = writeln!(
-                    s,
-                    "  per cm³ of core {}, per gram of core and copper {}",
-                    na(c.power_per_cm3_w, "W"),
-                    na(c.power_per_gram_w, "W")
-                );
-            }
-        } else {
-            let _ = writeln!(s, "  circuit figures: n/a at 0 Hz");
-        }
-        if let Some(a) = c.equivalent_area_m2 {
-            let _ = writeln!(
-                s,
-                "  equivalent area {a:.4e} m²{} (flux linkage / applied b)",
-                pm(c.equivalent_area_m2_err)
-            );
-        }
     }
+    let _ = writeln!(
+        s,
+        "  L {}{} (energy check {}), R {} winding + {} induced, Q {}",
+        eng(c.inductance_h.value, "H"),
+        pm(c.inductance_h.err),
+        eng(c.inductance_energy_h, "H"),
+        eng(c.resistance_ohm, "Ω"),
+        eng(c.eddy_resistance_ohm, "Ω"),
+        c.q.value.map_or("n/a".to_string(), |q| format!("{q:.1}"))
+    );
+    if ac {
+        let _ = writeln!(
+            s,
+            "  tuning {}: C {} (series {}, parallel {}), capacitor voltage at resonance {}",
+            c.tuning,
+            na(c.tuning_capacitance_f.value, "F"),
+            na(c.series_capacitance_f, "F"),
+            na(c.parallel_capacitance_f, "F"),
+            na(c.capacitor_voltage_v, "V")
+        );
+        let load = match c.load_ohm {
+            Some(x) => format!("into {}: {}", eng(x, "Ω"), na(c.load_power_w, "W")),
+            None => "into a matched load".into(),
+        };
+        let _ = writeln!(
+            s,
+            "  power matched {}{}, {load}",
+            na(c.matched_power_w.value, "W"),
+            pm(c.matched_power_w.err)
+        );
+        if let Some(e) = c.storage_energy_j {
+            let _ = writeln!(
+                s,
+                "  storage {} charged in {} (ideal rectifier)",
+                eng(e, "J"),
+                c.charge_time_s.map_or("n/a".to_string(), duration)
+            );
+        }
+        if c.power_per_cm3_w.is_some() || c.power_per_gram_w.is_some() {
+            let _ = writeln!(
+                s,
+                "  per cm³ of core {}, per gram of core and copper {}",
+                na(c.power_per_cm3_w, "W"),
+                na(c.power_per_gram_w, "W")
+            );
+        }
+    } else {
+        let _ = writeln!(s, "  circuit figures: n/a at 0 Hz");
+    }
+    if let Some(a) = c.equivalent_area_m2.value {
+        let _ = writeln!(
+            s,
+            "  equivalent area {a:.4e} m²{} (flux linkage / applied b)",
+            pm(c.equivalent_area_m2.err)
+        );
+    }
+    s
+}
+
+/// The parts' and conductors' tables of the summary.
+fn summary_tables(r: &Results) -> String {
+    let mut s = String::new();
     if !r.parts.is_empty() {
         let _ = writeln!(
             s,
@@ -374,13 +335,13 @@ pub fn summary(r: &Results) -> String {
                 s,
                 "{:<14} {:>20} {:>12} {:>10} {:>10} {:>12}",
                 name,
-                format!("{}{}", eng(p.b_mean_t, "T"), pm(p.b_mean_t_err)),
+                format!("{}{}", eng(p.b_mean_t.value, "T"), pm(p.b_mean_t.err)),
                 eng(p.b_peak_t, "T"),
                 p.b_peak_over_sat
                     .map_or("-".into(), |x| format!("{:.1} %", 100.0 * x)),
                 p.apparent_permeability
                     .map_or("-".into(), |x| format!("{x:.1}")),
-                eng(p.loss_w, "W")
+                eng(p.loss_w.value, "W")
             );
         }
     }
@@ -396,24 +357,13 @@ pub fn summary(r: &Results) -> String {
                 "{:<14} {:>12} {:>12} {:>9} {:>12}",
                 name,
                 eng(c.current_a, "A"),
-                eng(c.resistance_ohm, "Ω"),
+                eng(c.resistance_ohm.value, "Ω"),
                 c.ac_dc_ratio
-                    .map_or("-".into(), |x| format!("{x:.3}{}", pm(c.ac_dc_ratio_err))),
-                eng(c.loss_w, "W")
+                    .value
+                    .map_or("-".into(), |x| format!("{x:.3}{}", pm(c.ac_dc_ratio.err))),
+                eng(c.loss_w.value, "W")
             );
         }
-    }
-    for k in &r.skin_layers {
-        let _ = writeln!(
-            s,
-            "skin depth in {}: {} (surface elements {})",
-            k.name,
-            eng(k.skin_depth_m, "m"),
-            eng(k.surface_element_m, "m")
-        );
-    }
-    for w in &r.warnings {
-        let _ = writeln!(s, "warning: {w}");
     }
     s
 }

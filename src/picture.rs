@@ -8,7 +8,7 @@
 use std::collections::HashMap;
 use std::fmt::Write as _;
 
-use crate::study::Run;
+use crate::pipeline::Run;
 
 /// A dark-to-light colour ramp of our own (blue-violet through teal to pale yellow).
 pub fn ramp(t: f64) -> (u8, u8, u8) {
@@ -53,10 +53,10 @@ pub fn region_outlines(m: &fluxpick_mesh::Mesh) -> Vec<([f64; 2], [f64; 2])> {
     out
 }
 
-/// The picture, `width` pixels wide, as SVG text.
-pub fn field_svg(run: &Run, width: usize) -> String {
+/// The picture's extent: the parts, conductors and coils with a margin of 60 % of their
+/// larger extent each side (the air far away shows little), within the physical domain.
+fn view(run: &Run) -> ([f64; 2], [f64; 2]) {
     let d = &run.disc;
-    let axi = d.formulation == fluxpick_solver::Formulation::Axisymmetric;
     // physical extent
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     for c in (0..d.n_cells()).filter(|&c| !d.is_image(c)) {
@@ -91,6 +91,72 @@ pub fn field_svg(run: &Run, width: usize) -> String {
             hi[k] = hi[k].min(vhi[k] + m);
         }
     }
+    (lo, hi)
+}
+
+/// Flux lines (30 levels of the flux function) by marching squares over the corner samples
+/// `psi` of an `nx` × `ny` pixel grid, as one SVG path (empty where the function is flat).
+fn flux_lines(psi: &[f64], nx: usize, ny: usize) -> String {
+    let mut s = String::new();
+    let finite: Vec<f64> = psi.iter().copied().filter(|v| v.is_finite()).collect();
+    if let (Some(mn), Some(mx)) = (
+        finite.iter().copied().reduce(f64::min),
+        finite.iter().copied().reduce(f64::max),
+    ) {
+        if mx > mn {
+            let n_lines = 30;
+            let mut path = String::new();
+            for l in 1..n_lines {
+                let c = mn + (mx - mn) * l as f64 / n_lines as f64;
+                for j in 0..ny {
+                    for i in 0..nx {
+                        let v = [
+                            psi[j * (nx + 1) + i],
+                            psi[j * (nx + 1) + i + 1],
+                            psi[(j + 1) * (nx + 1) + i + 1],
+                            psi[(j + 1) * (nx + 1) + i],
+                        ];
+                        if v.iter().any(|x| !x.is_finite()) {
+                            continue;
+                        }
+                        let corner = [
+                            (i as f64, j as f64),
+                            (i as f64 + 1.0, j as f64),
+                            (i as f64 + 1.0, j as f64 + 1.0),
+                            (i as f64, j as f64 + 1.0),
+                        ];
+                        let mut cross = Vec::with_capacity(4);
+                        for k in 0..4 {
+                            let (a, b) = (v[k], v[(k + 1) % 4]);
+                            if (a < c) != (b < c) {
+                                let t = (c - a) / (b - a);
+                                let (p, q) = (corner[k], corner[(k + 1) % 4]);
+                                cross.push((p.0 + t * (q.0 - p.0), p.1 + t * (q.1 - p.1)));
+                            }
+                        }
+                        for pair in cross.chunks(2) {
+                            if let [p, q] = pair {
+                                let _ =
+                                    write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
+                            }
+                        }
+                    }
+                }
+            }
+            let _ = writeln!(
+                s,
+                r#"<path d="{path}" stroke="white" stroke-opacity="0.8" stroke-width="0.8" fill="none"/>"#
+            );
+        }
+    }
+    s
+}
+
+/// The picture, `width` pixels wide, as SVG text.
+pub fn field_svg(run: &Run, width: usize) -> String {
+    let d = &run.disc;
+    let axi = d.formulation == fluxpick_solver::Formulation::Axisymmetric;
+    let (lo, hi) = view(run);
     let (w, h) = (hi[0] - lo[0], hi[1] - lo[1]);
     let nx = width.max(40);
     let ny = ((nx as f64) * h / w).round().max(10.0) as usize;
@@ -170,58 +236,7 @@ pub fn field_svg(run: &Run, width: usize) -> String {
         }
     }
     let _ = writeln!(s, "</g>");
-    // flux lines by marching squares over the corner samples
-    let finite: Vec<f64> = psi.iter().copied().filter(|v| v.is_finite()).collect();
-    if let (Some(mn), Some(mx)) = (
-        finite.iter().copied().reduce(f64::min),
-        finite.iter().copied().reduce(f64::max),
-    ) {
-        if mx > mn {
-            let n_lines = 30;
-            let mut path = String::new();
-            for l in 1..n_lines {
-                let c = mn + (mx - mn) * l as f64 / n_lines as f64;
-                for j in 0..ny {
-                    for i in 0..nx {
-                        let v = [
-                            psi[j * (nx + 1) + i],
-                            psi[j * (nx + 1) + i + 1],
-                            psi[(j + 1) * (nx + 1) + i + 1],
-                            psi[(j + 1) * (nx + 1) + i],
-                        ];
-                        if v.iter().any(|x| !x.is_finite()) {
-                            continue;
-                        }
-                        let corner = [
-                            (i as f64, j as f64),
-                            (i as f64 + 1.0, j as f64),
-                            (i as f64 + 1.0, j as f64 + 1.0),
-                            (i as f64, j as f64 + 1.0),
-                        ];
-                        let mut cross = Vec::with_capacity(4);
-                        for k in 0..4 {
-                            let (a, b) = (v[k], v[(k + 1) % 4]);
-                            if (a < c) != (b < c) {
-                                let t = (c - a) / (b - a);
-                                let (p, q) = (corner[k], corner[(k + 1) % 4]);
-                                cross.push((p.0 + t * (q.0 - p.0), p.1 + t * (q.1 - p.1)));
-                            }
-                        }
-                        for pair in cross.chunks(2) {
-                            if let [p, q] = pair {
-                                let _ =
-                                    write!(path, "M{:.1} {:.1}L{:.1} {:.1}", p.0, p.1, q.0, q.1);
-                            }
-                        }
-                    }
-                }
-            }
-            let _ = writeln!(
-                s,
-                r#"<path d="{path}" stroke="white" stroke-opacity="0.8" stroke-width="0.8" fill="none"/>"#
-            );
-        }
-    }
+    s += &flux_lines(&psi, nx, ny);
     // outlines: mesh edges between different regions, and the outer boundary
     let mut outline = String::new();
     let m = &run.mesh;
@@ -262,10 +277,10 @@ pub fn field_svg(run: &Run, width: usize) -> String {
         s,
         r#"<text x="10" y="{:.0}">{}</text><text x="{:.0}" y="{:.0}" text-anchor="end">{}</text><text x="{:.0}" y="{:.0}">|B| (rms, log scale); white: flux lines{}</text>"#,
         y0 + 28.0,
-        crate::output::eng(b_lo, "T"),
+        crate::format::eng(b_lo, "T"),
         10.0 + bar_w,
         y0 + 28.0,
-        crate::output::eng(b_hi, "T"),
+        crate::format::eng(b_hi, "T"),
         20.0 + bar_w,
         y0 + 10.0,
         if axi {

@@ -6,7 +6,6 @@
 
 use crate::build::Model;
 use crate::case::Case;
-use crate::study::StudyError;
 use fluxpick_solver::SolveError;
 
 /// A solve that would have given a wrong answer silently, named in the case's terms.
@@ -26,17 +25,6 @@ pub enum PhysicsError {
     Residual { residual: f64, tolerance: f64 },
 }
 
-impl PhysicsError {
-    /// Exit status: 2 when the case as written cannot be solved (no reference), 1 when the
-    /// solve failed numerically.
-    pub fn exit_code(&self) -> i32 {
-        match self {
-            PhysicsError::NoReference { .. } => 2,
-            PhysicsError::NotFinite { .. } | PhysicsError::Residual { .. } => 1,
-        }
-    }
-}
-
 fn quoted(names: &[String]) -> String {
     names
         .iter()
@@ -45,15 +33,12 @@ fn quoted(names: &[String]) -> String {
         .join(", ")
 }
 
-/// Turns the solver's sanity failures in `e` into [`PhysicsError`]s naming the case's
-/// entries; other errors pass unchanged.
-pub fn name_regions(case: &Case, e: StudyError) -> StudyError {
-    let StudyError::Solve(s) = &e else {
-        return e;
-    };
+/// The solver's sanity failure `s` as a [`PhysicsError`] naming the case's entries (None
+/// for other solve errors).
+pub fn name_regions(case: &Case, s: &SolveError) -> Option<PhysicsError> {
     let names = || {
         Model::new(case)
-            .map(|m| crate::output::region_names(case, &m))
+            .map(|m| m.region_names(case))
             .unwrap_or_default()
     };
     let name = |names: &[String], r: u32| {
@@ -83,9 +68,9 @@ pub fn name_regions(case: &Case, e: StudyError) -> StudyError {
             residual: *residual,
             tolerance: *tolerance,
         },
-        _ => return e,
+        _ => return None,
     };
-    StudyError::Physics(p)
+    Some(p)
 }
 
 /// Dotted paths of every NaN or infinite number in a serialisable value (`results.json`

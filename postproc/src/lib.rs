@@ -11,6 +11,10 @@
 //! ```
 
 pub mod circuit;
+pub mod design;
+pub mod errors;
+pub mod estimated;
+pub mod fields;
 pub mod figures;
 pub mod probe;
 pub mod vtk;

@@ -13,20 +13,22 @@
 //! stopped it is stated in results.json (`accuracy.stopped`) and in the summary, never
 //! silently.
 //!
-//! Each pass is a fresh solve on the new mesh: the model (geometry, materials, windings) is
-//! built once and reused; the matrix pattern and its factorisation depend on the mesh and
-//! are made anew.
+//! Each pass is a fresh solve on the new mesh ([`super::solve_on`]): the model is built
+//! again from the case (cheap beside the solve), and the matrix pattern and its
+//! factorisation, which depend on the mesh, are made anew.
 
 use std::collections::BTreeMap;
 use std::time::Instant;
 
 use fluxpick_mesh::{Shape, SizeMap};
+use fluxpick_postproc::estimated::Estimated;
 use serde::Serialize;
 
 use crate::build::Owner;
-
 use crate::case::Case;
-use crate::study::{run_on, Results, Run, StudyError};
+use crate::settings::Settings;
+
+use super::{solve_on, Results, Run, SolveNotes, StudyError};
 
 /// Most passes of one adaptive solve.
 pub const MAX_PASSES: usize = 12;
@@ -46,14 +48,35 @@ const BULK: f64 = 0.5;
 /// Size asked for in a marked cell, as a fraction of its longest edge.
 const SHRINK: f64 = 0.5;
 
+/// Why the adaptive refinement stopped.
+#[derive(Clone, Copy, Debug, Serialize, PartialEq, Eq)]
+pub enum Stop {
+    #[serde(rename = "target reached")]
+    TargetReached,
+    #[serde(rename = "element budget")]
+    ElementBudget,
+    #[serde(rename = "pass limit")]
+    PassLimit,
+}
+
+impl std::fmt::Display for Stop {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Stop::TargetReached => "target reached",
+            Stop::ElementBudget => "element budget",
+            Stop::PassLimit => "pass limit",
+        })
+    }
+}
+
 #[derive(Clone, Debug, Serialize, PartialEq)]
 pub struct AccuracyReport {
     /// The relative accuracy asked for.
     pub target: f64,
     /// Whether every estimated figure error is at or below the target.
     pub reached: bool,
-    /// Why the refinement stopped: "target reached", "element budget", "pass limit".
-    pub stopped: String,
+    /// Why the refinement stopped.
+    pub stopped: Stop,
     pub max_triangles: usize,
     /// One entry per pass, the last being the result reported.
     pub refinement: Vec<Pass>,
@@ -86,28 +109,24 @@ pub struct Pass {
 /// The figures the adaptive loop controls, with their estimates (dotted keys as in
 /// results.json).
 pub fn controlled(r: &Results) -> Vec<(String, f64, Option<f64>)> {
+    let row = |key: String, f: &Estimated<f64>| (key, f.value, f.err);
     let mut out = Vec::new();
     for (name, c) in &r.coils {
-        out.push((
+        out.push(row(
             format!("coils.{name}.flux_linkage_wb"),
-            c.flux_linkage_wb,
-            c.flux_linkage_wb_err,
+            &c.flux_linkage_wb,
         ));
-        out.push((
-            format!("coils.{name}.inductance_h"),
-            c.inductance_h,
-            c.inductance_h_err,
-        ));
+        out.push(row(format!("coils.{name}.inductance_h"), &c.inductance_h));
     }
     for (name, p) in &r.parts {
-        out.push((format!("parts.{name}.b_mean_t"), p.b_mean_t, p.b_mean_t_err));
-        if p.loss_w > 0.0 {
-            out.push((format!("parts.{name}.loss_w"), p.loss_w, p.loss_w_err));
+        out.push(row(format!("parts.{name}.b_mean_t"), &p.b_mean_t));
+        if p.loss_w.value > 0.0 {
+            out.push(row(format!("parts.{name}.loss_w"), &p.loss_w));
         }
     }
     for (name, c) in &r.conductors {
-        if c.loss_w > 0.0 && c.loss_w_err.is_some() {
-            out.push((format!("conductors.{name}.loss_w"), c.loss_w, c.loss_w_err));
+        if c.loss_w.value > 0.0 && c.loss_w.err.is_some() {
+            out.push(row(format!("conductors.{name}.loss_w"), &c.loss_w));
         }
     }
     out
@@ -337,44 +356,52 @@ fn extrapolated(passes: &[Pass], now: &Pass) -> Option<BTreeMap<String, f64>> {
 /// Writes the loop's estimates into the `_err` siblings of the controlled figures and of
 /// the figures derived from them.
 fn apply(r: &mut Results, est: &BTreeMap<String, f64>) {
+    // an estimate already made is replaced; none is added where none was made
+    fn replace<T>(f: &mut Estimated<T>, e: f64) {
+        f.err = f.err.map(|_| e);
+    }
     for (name, c) in r.coils.iter_mut() {
         if let Some(&e) = est.get(&format!("coils.{name}.flux_linkage_wb")) {
-            c.flux_linkage_wb_err = Some(e);
-            c.emf_v_err = c.emf_v_err.map(|_| e);
-            c.matched_power_w_err = c.matched_power_w_err.map(|_| 2.0 * e);
-            c.equivalent_area_m2_err = c.equivalent_area_m2_err.map(|_| e);
+            c.flux_linkage_wb.err = Some(e);
+            replace(&mut c.emf_v, e);
+            replace(&mut c.matched_power_w, 2.0 * e);
+            replace(&mut c.equivalent_area_m2, e);
         }
         if let Some(&e) = est.get(&format!("coils.{name}.inductance_h")) {
-            c.inductance_h_err = Some(e);
-            c.q_err = c.q_err.map(|_| e);
-            c.tuning_capacitance_f_err = c.tuning_capacitance_f_err.map(|_| e);
+            c.inductance_h.err = Some(e);
+            replace(&mut c.q, e);
+            replace(&mut c.tuning_capacitance_f, e);
         }
     }
     for (name, p) in r.parts.iter_mut() {
         if let Some(&e) = est.get(&format!("parts.{name}.b_mean_t")) {
-            p.b_mean_t_err = Some(e);
+            p.b_mean_t.err = Some(e);
         }
         if let Some(&e) = est.get(&format!("parts.{name}.loss_w")) {
-            p.loss_w_err = Some(e);
+            p.loss_w.err = Some(e);
         }
     }
     for (name, c) in r.conductors.iter_mut() {
         if let Some(&e) = est.get(&format!("conductors.{name}.loss_w")) {
-            c.loss_w_err = Some(e);
-            c.resistance_ohm_err = c.resistance_ohm_err.map(|_| e);
-            c.ac_dc_ratio_err = c.ac_dc_ratio_err.map(|_| e);
+            c.loss_w.err = Some(e);
+            replace(&mut c.resistance_ohm, e);
+            replace(&mut c.ac_dc_ratio, e);
         }
     }
 }
 
 /// Solves `case` adaptively to the relative accuracy `target` (or, with
 /// `model.refinement = "uniform"`, by halving every cell each pass, for comparison).
-pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
+pub fn run_adaptive(
+    case: &Case,
+    settings: &Settings,
+    target: f64,
+) -> Result<(Run, SolveNotes), StudyError> {
     let mut map: Option<SizeMap> = None;
     let mut passes: Vec<Pass> = Vec::new();
-    let (mut run, stopped) = loop {
+    let (mut run, notes, stopped) = loop {
         let t0 = Instant::now();
-        let mut run = run_on(case, map.as_ref())?;
+        let (mut run, notes) = solve_on(case, settings, map.as_ref())?;
         let figs = controlled(&run.results);
         let mut pass = Pass {
             triangles: run.results.mesh.triangles,
@@ -406,10 +433,10 @@ pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
         // the first pass's recovery estimate only guides the marking: it does not see the
         // geometry error and can be optimistic for region means (DEVELOPERS.md)
         if worst <= target / MARGIN && passes.len() >= MIN_PASSES {
-            break (run, "target reached");
+            break (run, notes, Stop::TargetReached);
         }
         if passes.len() >= MAX_PASSES {
-            break (run, "pass limit");
+            break (run, notes, Stop::PassLimit);
         }
         let image = run.mesh.exterior.as_ref().map(|e| e.region);
         let physical = |c: usize| Some(run.mesh.triangle_region[c]) != image;
@@ -427,26 +454,17 @@ pub fn run_adaptive(case: &Case, target: f64) -> Result<Run, StudyError> {
         // a halved cell becomes about four
         let next = triangles + 3 * marked.len();
         if marked.is_empty() || next > case.max_triangles {
-            break (run, "element budget");
+            break (run, notes, Stop::ElementBudget);
         }
         map = Some(size_map(&run, &marked, map.as_ref()));
     };
-    let reached = stopped == "target reached";
-    if !reached {
-        run.results.warnings.push(format!(
-            "accuracy: the target {} was not reached ({stopped} after {} passes, {} triangles): the largest estimated error is {:.2} %; raise model.max_triangles or relax the target",
-            target,
-            passes.len(),
-            run.results.mesh.triangles,
-            100.0 * passes.last().map_or(f64::NAN, |p| p.worst)
-        ));
-    }
+    let reached = stopped == Stop::TargetReached;
     run.results.accuracy = Some(AccuracyReport {
         target,
         reached,
-        stopped: stopped.into(),
+        stopped,
         max_triangles: case.max_triangles,
         refinement: passes,
     });
-    Ok(run)
+    Ok((run, notes))
 }

@@ -5,9 +5,16 @@ use std::path::{Path, PathBuf};
 
 use clap::{CommandFactory, Parser, Subcommand};
 
+mod commands;
+mod runtime;
+mod sweep;
+pub mod ui;
+
 use crate::case::{load_case, summary as case_summary, Case};
 use crate::output;
-use crate::study::{run, StudyError};
+use crate::pipeline::{run, StudyError};
+use crate::settings::Settings;
+use ui::{Level, Ui};
 
 #[derive(Parser, Debug)]
 #[command(
@@ -214,10 +221,10 @@ fn parse_shard(s: &str) -> Option<(usize, usize)> {
     (n >= 1 && (1..=n).contains(&k)).then_some((k, n))
 }
 
-fn load(path: &Path) -> Result<Case, i32> {
-    crate::note!("reading {}", path.display());
+fn load(ui: &Ui, path: &Path) -> Result<Case, i32> {
+    crate::note!(ui, "reading {}", path.display());
     load_case(path).map_err(|e| {
-        if crate::ui::json() {
+        if ui.json {
             print_json(&serde_json::json!({
                 "file": path.display().to_string(),
                 "ok": false,
@@ -250,10 +257,10 @@ fn print_json(v: &impl serde::Serialize) {
 }
 
 /// Prints the warnings of `crate::lint` for a case (standard error, not with --quiet).
-fn print_lint(path: &Path, c: &Case) -> Vec<crate::lint::Warning> {
+fn print_lint(ui: &Ui, path: &Path, c: &Case) -> Vec<crate::lint::Warning> {
     let warnings = crate::lint::lint(c);
     for w in &warnings {
-        crate::ui::warn(&path.display().to_string(), w);
+        ui.warn(&path.display().to_string(), w);
     }
     warnings
 }
@@ -303,14 +310,49 @@ fn io_fail(what: &str, path: &Path, e: std::io::Error) -> i32 {
     1
 }
 
+/// Exit status of a failed study: 2 for a case the program cannot take, 1 for a failed solve.
+fn study_exit_code(e: &StudyError) -> i32 {
+    match e {
+        StudyError::Build(_) | StudyError::Hidden(_) | StudyError::Curve(..) => 2,
+        StudyError::Limit(_) => 2,
+        StudyError::Newton(_) | StudyError::Mesh(_) | StudyError::Solve(_) => 1,
+        // no reference: the case as written cannot be solved; the others failed numerically
+        StudyError::Physics(crate::sanity::PhysicsError::NoReference { .. }) => 2,
+        StudyError::Physics(_) => 1,
+    }
+}
+
 fn study_fail(case: &Path, e: StudyError) -> i32 {
     eprintln!("error: {}: {e}\n  help: {}", case.display(), study_help(&e));
-    e.exit_code()
+    study_exit_code(&e)
+}
+
+/// Prints a command's error and returns its exit status.
+fn run_fail(e: crate::error::RunError) -> i32 {
+    use crate::error::RunError;
+    match e {
+        RunError::Case(c) => {
+            eprintln!("{:?}", miette::Report::new(*c));
+            2
+        }
+        RunError::Input(m) => {
+            eprintln!("error: {m}");
+            2
+        }
+        RunError::Study { file, source } => {
+            eprintln!("error: {file}: {source}");
+            study_exit_code(&source)
+        }
+        RunError::Write(m) => {
+            eprintln!("error: {m}");
+            1
+        }
+    }
 }
 
 /// Runs the CLI on the process arguments; returns the exit status.
 pub fn main() -> i32 {
-    crate::ui::init_error_rendering();
+    ui::init_error_rendering();
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
@@ -319,197 +361,46 @@ pub fn main() -> i32 {
             return code;
         }
     };
-    crate::ui::set_level(if cli.quiet {
-        crate::ui::Level::Quiet
-    } else if cli.verbose {
-        crate::ui::Level::Verbose
-    } else {
-        crate::ui::Level::Normal
-    });
-    crate::ui::set_json(match &cli.command {
-        Command::Check { json, .. }
-        | Command::Mesh { json, .. }
-        | Command::Solve { json, .. }
-        | Command::Sweep { json, .. }
-        | Command::Merge { json, .. }
-        | Command::Map { json, .. }
-        | Command::Compare { json, .. } => *json,
-        _ => false,
-    });
-    if let Err(code) =
-        crate::runtime::settings_from_cli(cli.threads, cli.max_triangles, cli.max_memory)
-    {
-        return code;
-    }
+    let ui = Ui {
+        level: if cli.quiet {
+            Level::Quiet
+        } else if cli.verbose {
+            Level::Verbose
+        } else {
+            Level::Normal
+        },
+        json: match &cli.command {
+            Command::Check { json, .. }
+            | Command::Mesh { json, .. }
+            | Command::Solve { json, .. }
+            | Command::Sweep { json, .. }
+            | Command::Merge { json, .. }
+            | Command::Map { json, .. }
+            | Command::Compare { json, .. } => *json,
+            _ => false,
+        },
+    };
+    let settings = match runtime::settings_from_cli(&cli) {
+        Ok(s) => s,
+        Err(code) => return code,
+    };
     crate::interrupt::install();
-    if let Some(a) = cli.accuracy {
-        if !(1e-6..=0.5).contains(&a) {
-            eprintln!("error: --accuracy {a}: the target is a relative error between 1e-6 and 0.5\n  help: write e.g. --accuracy 0.005 for 0.5 %");
-            return 2;
-        }
-        crate::study::set_accuracy(a);
-    }
-    match execute(cli) {
+    match execute(cli, &ui, &settings) {
         Ok(()) => 0,
         Err(code) => code,
     }
 }
 
-fn execute(cli: Cli) -> Result<(), i32> {
+fn execute(cli: Cli, ui: &Ui, settings: &Settings) -> Result<(), i32> {
     match cli.command {
-        Command::Check { case, json } => {
-            let c = load(&case)?;
-            let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
-            crate::ui::out(&case_summary(&c));
-            crate::say!(
-                "open boundary: {}",
-                if model.spec.exterior_image {
-                    "exterior image (Kelvin inversion)"
-                } else {
-                    "no"
-                }
-            );
-            if crate::ui::verbose() {
-                for (k, v) in &c.parameters {
-                    crate::note!("parameter {k} = {v}");
-                }
-            }
-            let warnings = print_lint(&case, &c);
-            // Sweep values that would not resolve on their own (warned, not fatal: a sweep
-            // may run past where a winding fits).
-            let mut sweep_problems = Vec::new();
-            if !c.sweeps.is_empty() {
-                if let Ok((raw, text)) = crate::case::load(&case) {
-                    let src = crate::case::SourceInfo::new(case.display().to_string(), text);
-                    for e in crate::case::check_sweep_points(&raw, &src, &c) {
-                        crate::ui::warn(
-                            &case.display().to_string(),
-                            &crate::lint::Warning {
-                                key: e.key.clone(),
-                                message: e.message.clone(),
-                                help: e.help_text().unwrap_or("").to_string(),
-                            },
-                        );
-                        sweep_problems.push(case_error_json(&e));
-                    }
-                }
-            }
-            if json {
-                print_json(&serde_json::json!({
-                    "file": case.display().to_string(),
-                    "ok": true,
-                    "title": c.title,
-                    "symmetry": format!("{:?}", c.symmetry).to_lowercase(),
-                    "frequency_hz": c.frequency,
-                    "parts": c.parts.iter().map(|p| &p.name).collect::<Vec<_>>(),
-                    "conductors": c.conductors.iter().map(|p| &p.name).collect::<Vec<_>>(),
-                    "coils": c.coils.iter().map(|p| &p.name).collect::<Vec<_>>(),
-                    "sweep_points": c.sweeps.iter().map(|s| s.values.len()).product::<usize>(),
-                    "estimated_triangles": crate::case::estimated_elements(&c).round(),
-                    "open_boundary": model.spec.exterior_image,
-                    "warnings": warnings,
-                    "sweep_point_problems": sweep_problems,
-                }));
-            }
-            Ok(())
-        }
-        Command::Mesh { case, out, json } => {
-            let c = load(&case)?;
-            let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
-            let t0 = std::time::Instant::now();
-            let mesh = crate::study::mesh_model(&c, &model).map_err(|e| study_fail(&case, e))?;
-            let secs = t0.elapsed().as_secs_f64();
-            let _writing = crate::interrupt::WriteGuard::new();
-            std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
-            let path = out.join("mesh.vtu");
-            output::write_mesh_vtu(&path, &c, &model, &mesh)
-                .map_err(|e| io_fail("mesh", &path, e))?;
-            let stats = mesh.stats();
-            let names = output::region_names(&c, &model);
-            if json {
-                print_json(&serde_json::json!({
-                    "file": case.display().to_string(),
-                    "mesh_vtu": path.display().to_string(),
-                    "seconds": secs,
-                    "nodes": stats.nodes,
-                    "triangles": stats.triangles,
-                    "min_angle_deg": stats.min_angle_deg,
-                    "mean_min_angle_deg": stats.mean_min_angle_deg,
-                    "regions": names.iter().zip(&stats.regions).map(|(n, r)| serde_json::json!({
-                        "name": n,
-                        "triangles": r.triangles,
-                        "area_m2": r.area,
-                        "max_edge_m": r.max_edge,
-                        "min_angle_deg": r.min_angle_deg,
-                    })).collect::<Vec<_>>(),
-                }));
-            }
-            crate::say!(
-                "{} nodes, {} triangles in {:.2} s; smallest angle {:.1}°, mean of the smallest angles {:.1}°",
-                stats.nodes, stats.triangles, secs, stats.min_angle_deg, stats.mean_min_angle_deg
-            );
-            crate::say!(
-                "{:<20} {:>10} {:>14} {:>12} {:>10}",
-                "region",
-                "triangles",
-                "area (m²)",
-                "max edge (m)",
-                "min angle"
-            );
-            for (name, r) in names.iter().zip(&stats.regions) {
-                crate::say!(
-                    "{name:<20} {:>10} {:>14.6e} {:>12.4e} {:>9.1}°",
-                    r.triangles,
-                    r.area,
-                    r.max_edge,
-                    r.min_angle_deg
-                );
-            }
-            crate::say!("wrote {}", path.display());
-            Ok(())
-        }
+        Command::Check { case, json } => check(ui, case, json),
+        Command::Mesh { case, out, json } => mesh(ui, settings, case, out, json),
         Command::Solve {
             case,
             out,
             json,
             plot,
-        } => {
-            let c = load(&case)?;
-            print_lint(&case, &c);
-            crate::note!(
-                "solving: {} parts, {} conductors, {} coils, about {:.0} triangles",
-                c.parts.len(),
-                c.conductors.len(),
-                c.coils.len(),
-                crate::case::estimated_elements(&c)
-            );
-            let spinner = crate::runtime::spinner("solving");
-            let r = run(&c).map_err(|e| study_fail(&case, e))?;
-            drop(spinner);
-            crate::note!("writing {}", out.display());
-            let _writing = crate::interrupt::WriteGuard::new();
-            std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
-            let vtu = out.join("field.vtu");
-            output::write_field_vtu(&vtu, &c, &r).map_err(|e| io_fail("field", &vtu, e))?;
-            if plot {
-                let svg = out.join("field.svg");
-                fluxpick_postproc::atomic_write(
-                    &svg,
-                    crate::picture::field_svg(&r, 720).as_bytes(),
-                )
-                .map_err(|e| io_fail("picture", &svg, e))?;
-            }
-            let res = out.join("results.json");
-            output::write_results_json(&res, &r.results)
-                .map_err(|e| io_fail("results", &res, e))?;
-            if json {
-                print_json(&r.results);
-            } else {
-                crate::ui::out(&output::summary(&r.results));
-                crate::say!("wrote {} and {}", res.display(), vtu.display());
-            }
-            Ok(())
-        }
+        } => solve(ui, settings, case, out, json, plot),
         Command::Sweep {
             case,
             out,
@@ -517,60 +408,8 @@ fn execute(cli: Cli) -> Result<(), i32> {
             plot,
             json: _,
             resume,
-        } => {
-            let shard = match shard.as_deref().map(|s| (s, parse_shard(s))) {
-                None => None,
-                Some((_, Some(k))) => Some(k),
-                Some((s, None)) => {
-                    eprintln!("error: --shard {s}: write K/N with 1 <= K <= N, e.g. --shard 2/4");
-                    return Err(2);
-                }
-            };
-            let (raw, text) = crate::case::load(&case).map_err(|e| {
-                eprintln!("{:?}", miette::Report::new(e));
-                2
-            })?;
-            let src = crate::case::SourceInfo::new(case.display().to_string(), text);
-            let c = crate::case::resolve(&raw, &src, &Default::default()).map_err(|e| {
-                eprintln!("{:?}", miette::Report::new(e));
-                2
-            })?;
-            if c.sweeps.is_empty() {
-                eprintln!(
-                    "error: {}: the case has no [[sweep]] entry; add one, e.g.\n  [[sweep]]\n  parameter = \"L\"\n  values = [50, 100, 150]",
-                    case.display()
-                );
-                return Err(2);
-            }
-            crate::sweep::run_resumable(&out, &raw, &src, &c, shard, resume, &plot)
-        }
-        Command::Merge { dirs, out, json: _ } => {
-            let mut recs = Vec::new();
-            for d in &dirs {
-                let p = d.join("sweep.json");
-                let text = std::fs::read_to_string(&p).map_err(|e| {
-                    eprintln!("error: cannot read {}: {e}", p.display());
-                    2
-                })?;
-                let rec: crate::sweep::SweepRecord = serde_json::from_str(&text).map_err(|e| {
-                    eprintln!("error: {}: not a sweep record: {e}", p.display());
-                    2
-                })?;
-                recs.push(rec);
-            }
-            let rec = crate::sweep::merge(&recs).map_err(|e| {
-                eprintln!("error: {e}");
-                2
-            })?;
-            if rec.points.len() < rec.total_points {
-                eprintln!(
-                    "note: {} of {} points present (shards missing?)",
-                    rec.points.len(),
-                    rec.total_points
-                );
-            }
-            finish_sweep(&out, &rec, &[], 0.0)
-        }
+        } => sweep::sweep_command(ui, settings, case, out, shard, plot, resume),
+        Command::Merge { dirs, out, json: _ } => sweep::merge(ui, dirs, out),
         Command::Map {
             survey,
             pickup,
@@ -579,14 +418,23 @@ fn execute(cli: Cli) -> Result<(), i32> {
             axis,
             best,
             json: _,
-        } => crate::map::run(&survey, &pickup, probe.as_deref(), axis, best, &out),
+        } => commands::map(
+            ui,
+            settings,
+            &survey,
+            &pickup,
+            probe.as_deref(),
+            axis,
+            best,
+            &out,
+        ),
         Command::Compare {
             cases,
             rank,
             out,
             json: _,
-        } => crate::compare::run(&cases, &rank, out.as_deref()),
-        Command::New { kind, out, force } => new_case(&kind, out, force),
+        } => commands::compare(ui, settings, &cases, &rank, out.as_deref()),
+        Command::New { kind, out, force } => new_case(ui, &kind, out, force),
         Command::Explain { key } => explain(key.as_deref()),
         Command::Completions { shell } => {
             clap_complete::generate(
@@ -597,12 +445,173 @@ fn execute(cli: Cli) -> Result<(), i32> {
             );
             Ok(())
         }
-        Command::Manpage { out } => manpage(out.as_deref()),
+        Command::Manpage { out } => manpage(ui, out.as_deref()),
     }
 }
 
+/// `fluxpick check`: validates a case and prints what it describes.
+fn check(ui: &Ui, case: PathBuf, json: bool) -> Result<(), i32> {
+    let c = load(ui, &case)?;
+    let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
+    ui.out(&case_summary(&c));
+    crate::say!(
+        ui,
+        "open boundary: {}",
+        if model.spec.exterior_image {
+            "exterior image (Kelvin inversion)"
+        } else {
+            "no"
+        }
+    );
+    if ui.verbose() {
+        for (k, v) in &c.parameters {
+            crate::note!(ui, "parameter {k} = {v}");
+        }
+    }
+    let warnings = print_lint(ui, &case, &c);
+    // Sweep values that would not resolve on their own (warned, not fatal: a sweep
+    // may run past where a winding fits).
+    let mut sweep_problems = Vec::new();
+    if !c.sweeps.is_empty() {
+        if let Ok((raw, text)) = crate::case::load(&case) {
+            let src = crate::case::SourceInfo::new(case.display().to_string(), text);
+            for e in crate::case::check_sweep_points(&raw, &src, &c) {
+                ui.warn(
+                    &case.display().to_string(),
+                    &crate::lint::Warning {
+                        key: e.key.clone(),
+                        message: e.message.clone(),
+                        help: e.help_text().unwrap_or("").to_string(),
+                    },
+                );
+                sweep_problems.push(case_error_json(&e));
+            }
+        }
+    }
+    if json {
+        print_json(&serde_json::json!({
+            "file": case.display().to_string(),
+            "ok": true,
+            "title": c.title,
+            "symmetry": format!("{:?}", c.symmetry).to_lowercase(),
+            "frequency_hz": c.frequency,
+            "parts": c.parts.iter().map(|p| &p.name).collect::<Vec<_>>(),
+            "conductors": c.conductors.iter().map(|p| &p.name).collect::<Vec<_>>(),
+            "coils": c.coils.iter().map(|p| &p.name).collect::<Vec<_>>(),
+            "sweep_points": c.sweeps.iter().map(|s| s.values.len()).product::<usize>(),
+            "estimated_triangles": crate::case::estimated_elements(&c).round(),
+            "open_boundary": model.spec.exterior_image,
+            "warnings": warnings,
+            "sweep_point_problems": sweep_problems,
+        }));
+    }
+    Ok(())
+}
+
+/// `fluxpick mesh`: meshes a case and writes mesh.vtu.
+fn mesh(ui: &Ui, settings: &Settings, case: PathBuf, out: PathBuf, json: bool) -> Result<(), i32> {
+    let c = load(ui, &case)?;
+    let model = crate::build::Model::new(&c).map_err(|e| study_fail(&case, e.into()))?;
+    let t0 = std::time::Instant::now();
+    let mesh =
+        crate::pipeline::mesh_model(&c, &model, settings).map_err(|e| study_fail(&case, e))?;
+    let secs = t0.elapsed().as_secs_f64();
+    let _writing = crate::interrupt::WriteGuard::new();
+    std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
+    let path = out.join("mesh.vtu");
+    output::write_mesh_vtu(&path, &c, &model, &mesh).map_err(|e| io_fail("mesh", &path, e))?;
+    let stats = mesh.stats();
+    let names = model.region_names(&c);
+    if json {
+        print_json(&serde_json::json!({
+            "file": case.display().to_string(),
+            "mesh_vtu": path.display().to_string(),
+            "seconds": secs,
+            "nodes": stats.nodes,
+            "triangles": stats.triangles,
+            "min_angle_deg": stats.min_angle_deg,
+            "mean_min_angle_deg": stats.mean_min_angle_deg,
+            "regions": names.iter().zip(&stats.regions).map(|(n, r)| serde_json::json!({
+                "name": n,
+                "triangles": r.triangles,
+                "area_m2": r.area,
+                "max_edge_m": r.max_edge,
+                "min_angle_deg": r.min_angle_deg,
+            })).collect::<Vec<_>>(),
+        }));
+    }
+    crate::say!(ui,
+        "{} nodes, {} triangles in {:.2} s; smallest angle {:.1}°, mean of the smallest angles {:.1}°",
+        stats.nodes, stats.triangles, secs, stats.min_angle_deg, stats.mean_min_angle_deg
+    );
+    crate::say!(
+        ui,
+        "{:<20} {:>10} {:>14} {:>12} {:>10}",
+        "region",
+        "triangles",
+        "area (m²)",
+        "max edge (m)",
+        "min angle"
+    );
+    for (name, r) in names.iter().zip(&stats.regions) {
+        crate::say!(
+            ui,
+            "{name:<20} {:>10} {:>14.6e} {:>12.4e} {:>9.1}°",
+            r.triangles,
+            r.area,
+            r.max_edge,
+            r.min_angle_deg
+        );
+    }
+    crate::say!(ui, "wrote {}", path.display());
+    Ok(())
+}
+
+/// `fluxpick solve`: solves a case and writes results.json, field.vtu and a summary.
+fn solve(
+    ui: &Ui,
+    settings: &Settings,
+    case: PathBuf,
+    out: PathBuf,
+    json: bool,
+    plot: bool,
+) -> Result<(), i32> {
+    let c = load(ui, &case)?;
+    print_lint(ui, &case, &c);
+    crate::note!(
+        ui,
+        "solving: {} parts, {} conductors, {} coils, about {:.0} triangles",
+        c.parts.len(),
+        c.conductors.len(),
+        c.coils.len(),
+        crate::case::estimated_elements(&c)
+    );
+    let spinner = runtime::spinner("solving");
+    let r = run(&c, settings).map_err(|e| study_fail(&case, e))?;
+    drop(spinner);
+    crate::note!(ui, "writing {}", out.display());
+    let _writing = crate::interrupt::WriteGuard::new();
+    std::fs::create_dir_all(&out).map_err(|e| io_fail("folder", &out, e))?;
+    let vtu = out.join("field.vtu");
+    output::write_field_vtu(&vtu, &c, &r).map_err(|e| io_fail("field", &vtu, e))?;
+    if plot {
+        let svg = out.join("field.svg");
+        fluxpick_postproc::atomic_write(&svg, crate::picture::field_svg(&r, 720).as_bytes())
+            .map_err(|e| io_fail("picture", &svg, e))?;
+    }
+    let res = out.join("results.json");
+    output::write_results_json(&res, &r.results).map_err(|e| io_fail("results", &res, e))?;
+    if json {
+        print_json(&r.results);
+    } else {
+        ui.out(&output::summary(&r.results));
+        crate::say!(ui, "wrote {} and {}", res.display(), vtu.display());
+    }
+    Ok(())
+}
+
 /// `fluxpick new`: writes a starter case, refusing to replace a file unless `force`.
-fn new_case(kind: &str, out: Option<PathBuf>, force: bool) -> Result<(), i32> {
+fn new_case(ui: &Ui, kind: &str, out: Option<PathBuf>, force: bool) -> Result<(), i32> {
     let Some(starter) = crate::starters::find(kind) else {
         eprintln!("error: no starter `{kind}`");
         return Err(2);
@@ -627,7 +636,7 @@ fn new_case(kind: &str, out: Option<PathBuf>, force: bool) -> Result<(), i32> {
     let stem = out
         .file_stem()
         .map_or("case".into(), |s| s.to_string_lossy().into_owned());
-    crate::say!(
+    crate::say!(ui,
         "wrote {} ({}).\nNext: read its comments, then\n  fluxpick check {}\n  fluxpick solve {} --out out/{stem} --plot",
         out.display(),
         starter.about,
@@ -665,7 +674,7 @@ fn explain(key: Option<&str>) -> Result<(), i32> {
 }
 
 /// `fluxpick manpage`: the roff page on standard output, or every page into a folder.
-fn manpage(out: Option<&Path>) -> Result<(), i32> {
+fn manpage(ui: &Ui, out: Option<&Path>) -> Result<(), i32> {
     let cmd = Cli::command();
     let render = |c: clap::Command| -> Result<Vec<u8>, i32> {
         let mut buf = Vec::new();
@@ -694,66 +703,11 @@ fn manpage(out: Option<&Path>) -> Result<(), i32> {
         let p = dir.join(name);
         fluxpick_postproc::atomic_write(&p, page).map_err(|e| io_fail("manual page", &p, e))?;
     }
-    crate::say!("wrote {} manual pages into {}", pages.len(), dir.display());
-    Ok(())
-}
-
-/// Writes a sweep's files and prints what it did; exit 1 when any point failed.
-pub(crate) fn finish_sweep(
-    out: &Path,
-    rec: &crate::sweep::SweepRecord,
-    plot: &[String],
-    secs: f64,
-) -> Result<(), i32> {
-    let keys = if plot.is_empty() {
-        crate::sweep::default_plot_keys(rec)
-    } else {
-        plot.to_vec()
-    };
-    let plots = crate::sweep::write_outputs(out, rec, &keys, "case units").map_err(|e| {
-        eprintln!("error: {e}");
-        1
-    })?;
-    let failed: Vec<&crate::sweep::PointResult> =
-        rec.points.iter().filter(|p| p.error.is_some()).collect();
-    if crate::ui::json() {
-        print_json(rec);
-    }
-    if secs > 0.0 {
-        crate::say!(
-            "{} points in {secs:.1} s ({:.2} points/s), {} failed",
-            rec.points.len(),
-            rec.points.len() as f64 / secs,
-            failed.len()
-        );
-    } else {
-        crate::say!("{} points, {} failed", rec.points.len(), failed.len());
-    }
     crate::say!(
-        "wrote {}/sweep.csv, sweep.json and {} plots",
-        out.display(),
-        plots.len()
+        ui,
+        "wrote {} manual pages into {}",
+        pages.len(),
+        dir.display()
     );
-    for c in crate::sweep::saturation_crossings(rec) {
-        crate::say!(
-            "{} reaches {:.0} % at {} = {:.4}",
-            c.figure,
-            100.0 * c.level,
-            c.parameter,
-            c.value
-        );
-    }
-    for p in &failed {
-        eprintln!(
-            "point {} ({:?}) failed: {}",
-            p.index,
-            p.parameters,
-            p.error.as_deref().unwrap_or("")
-        );
-    }
-    if failed.is_empty() {
-        Ok(())
-    } else {
-        Err(1)
-    }
+    Ok(())
 }

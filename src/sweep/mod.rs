@@ -7,53 +7,19 @@
 //! (`solve.*_s`) are left out of the sweep's outputs.
 
 use std::collections::BTreeMap;
-use std::io::IsTerminal;
 use std::path::Path;
 
 use rayon::prelude::*;
-use serde::{Deserialize, Serialize};
 
 use crate::case::{resolve, Case, RawCase, SourceInfo};
-use crate::study;
+
+pub mod journal;
+pub mod record;
+
+use crate::pipeline as study;
+use crate::settings::Settings;
 use fluxpick_postproc::atomic_write;
-
-/// One point of a sweep: its index in the full grid and the parameter values.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Point {
-    pub index: usize,
-    pub parameters: BTreeMap<String, f64>,
-}
-
-/// What a point gave: its scalar figures by dotted key, or the error that stopped it.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct PointResult {
-    pub index: usize,
-    pub parameters: BTreeMap<String, f64>,
-    pub figures: Option<BTreeMap<String, f64>>,
-    pub error: Option<String>,
-}
-
-/// The whole of a sweep (or of one shard of it), as written to `sweep.json`.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct SweepRecord {
-    pub title: String,
-    /// Swept parameters in file order.
-    pub parameters: Vec<String>,
-    /// Points in the full grid.
-    pub total_points: usize,
-    pub points: Vec<PointResult>,
-}
-
-/// Where a figure first reaches a level along a one-parameter sweep (linear interpolation
-/// between neighbouring points), e.g. the source current at which a core's peak flux
-/// density reaches 80 % of its saturation.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Crossing {
-    pub figure: String,
-    pub level: f64,
-    pub parameter: String,
-    pub value: f64,
-}
+pub use record::{csv_text, figure_keys, Crossing, Point, PointResult, SweepRecord};
 
 /// Saturation crossings of a sweep over one parameter (or one group, by its first
 /// parameter): for every part with a saturation flux density, where its peak and its mean
@@ -193,10 +159,10 @@ pub fn in_shard(index: usize, shard: Option<(usize, usize)>) -> bool {
 }
 
 /// Solves one point: resolve the case with the point's parameters, then run it.
-fn solve_point(raw: &RawCase, src: &SourceInfo, p: &Point) -> PointResult {
+fn solve_point(raw: &RawCase, src: &SourceInfo, p: &Point, settings: &Settings) -> PointResult {
     let outcome = resolve(raw, src, &p.parameters)
         .map_err(|e| e.render_plain())
-        .and_then(|c| study::run(&c).map_err(|e| e.to_string()));
+        .and_then(|c| study::run(&c, settings).map_err(|e| e.to_string()));
     match outcome {
         Ok(run) => PointResult {
             index: p.index,
@@ -213,29 +179,16 @@ fn solve_point(raw: &RawCase, src: &SourceInfo, p: &Point) -> PointResult {
     }
 }
 
-fn progress_bar(progress: bool, len: usize) -> Option<indicatif::ProgressBar> {
-    if !(progress && std::io::stderr().is_terminal()) {
-        return None;
-    }
-    let b = indicatif::ProgressBar::new(len as u64);
-    b.set_style(
-        indicatif::ProgressStyle::with_template(
-            "{bar:40} {pos}/{len} points, {elapsed} elapsed, about {eta} to go",
-        )
-        .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-    );
-    Some(b)
-}
-
-/// Solves the points (of one shard, if given) in parallel. A point that fails is recorded
-/// with its error; the others go on. `progress` shows a bar on standard error (on a
-/// terminal only).
+/// Solves the points (of one shard, if given) in parallel; `done` is called once per
+/// finished point (a progress display). A point that fails is recorded with its error; the
+/// others go on. The settings' memory limit is shared by the solves running at once.
 pub fn run_sweep(
     raw: &RawCase,
     src: &SourceInfo,
     case: &Case,
     shard: Option<(usize, usize)>,
-    progress: bool,
+    settings: &Settings,
+    done: &(dyn Fn() + Sync),
 ) -> SweepRecord {
     let all = points(case);
     let total_points = all.len();
@@ -243,20 +196,15 @@ pub fn run_sweep(
         .into_iter()
         .filter(|p| in_shard(p.index, shard))
         .collect();
-    let bar = progress_bar(progress, todo.len());
+    let settings = settings.shared_by(rayon::current_num_threads());
     let mut results: Vec<PointResult> = todo
         .par_iter()
         .map(|p| {
-            let r = solve_point(raw, src, p);
-            if let Some(b) = &bar {
-                b.inc(1);
-            }
+            let r = solve_point(raw, src, p, &settings);
+            done();
             r
         })
         .collect();
-    if let Some(b) = bar {
-        b.finish_and_clear();
-    }
     results.sort_by_key(|r| r.index);
     SweepRecord {
         title: case.title.clone(),
@@ -266,13 +214,13 @@ pub fn run_sweep(
     }
 }
 
-/// The journal header of a sweep of `case` (text `src`), for [`crate::journal::Journal`].
+/// The journal header of a sweep of `case` (text `src`), for [`journal::Journal`].
 pub fn journal_header(
     src: &SourceInfo,
     case: &Case,
     shard: Option<(usize, usize)>,
-) -> crate::journal::Header {
-    crate::journal::Header::new(
+) -> journal::Header {
+    journal::Header::new(
         &src.text,
         &case.title,
         case.sweeps.iter().map(|s| s.parameter.clone()).collect(),
@@ -291,31 +239,27 @@ pub fn run_sweep_journaled(
     src: &SourceInfo,
     case: &Case,
     shard: Option<(usize, usize)>,
-    progress: bool,
-    journal: &crate::journal::Journal,
+    settings: &Settings,
+    journal: &journal::Journal,
+    done: &(dyn Fn() + Sync),
 ) -> Result<(SweepRecord, bool), String> {
-    let done: std::collections::BTreeSet<usize> = journal.done_indices().into_iter().collect();
+    let finished: std::collections::BTreeSet<usize> = journal.done_indices().into_iter().collect();
     let todo: Vec<Point> = points(case)
         .into_iter()
-        .filter(|p| in_shard(p.index, shard) && !done.contains(&p.index))
+        .filter(|p| in_shard(p.index, shard) && !finished.contains(&p.index))
         .collect();
-    let bar = progress_bar(progress, todo.len());
+    let settings = settings.shared_by(rayon::current_num_threads());
     let failures: Vec<String> = todo
         .par_iter()
         .filter_map(|p| {
             if crate::interrupt::cancelled() {
                 return None;
             }
-            let r = solve_point(raw, src, p);
-            if let Some(b) = &bar {
-                b.inc(1);
-            }
+            let r = solve_point(raw, src, p, &settings);
+            done();
             journal.record(r).err()
         })
         .collect();
-    if let Some(b) = bar {
-        b.finish_and_clear();
-    }
     if let Some(e) = failures.into_iter().next() {
         return Err(e);
     }
@@ -349,53 +293,6 @@ pub fn merge(records: &[SweepRecord]) -> Result<SweepRecord, String> {
         total_points: first.total_points,
         points: points.into_values().collect(),
     })
-}
-
-/// The figure columns of a record: every key any point has, sorted.
-fn figure_keys(rec: &SweepRecord) -> Vec<String> {
-    let mut keys: Vec<String> = rec
-        .points
-        .iter()
-        .filter_map(|p| p.figures.as_ref())
-        .flat_map(|f| f.keys().cloned())
-        .collect();
-    keys.sort();
-    keys.dedup();
-    keys
-}
-
-/// `sweep.csv`: one row per point, the parameters, then every figure by dotted key, then
-/// `error` (empty when the point solved).
-pub fn csv_text(rec: &SweepRecord) -> Result<String, String> {
-    let keys = figure_keys(rec);
-    let mut w = csv::Writer::from_writer(Vec::new());
-    let mut header = vec!["point".to_string()];
-    header.extend(rec.parameters.iter().cloned());
-    header.extend(keys.iter().cloned());
-    header.push("error".into());
-    w.write_record(&header).map_err(|e| e.to_string())?;
-    for p in &rec.points {
-        let mut row = vec![p.index.to_string()];
-        for name in &rec.parameters {
-            row.push(
-                p.parameters
-                    .get(name)
-                    .map_or(String::new(), |v| format!("{v}")),
-            );
-        }
-        for k in &keys {
-            row.push(
-                p.figures
-                    .as_ref()
-                    .and_then(|f| f.get(k))
-                    .map_or(String::new(), |v| format!("{v:e}")),
-            );
-        }
-        row.push(p.error.clone().unwrap_or_default().replace('\n', " "));
-        w.write_record(&row).map_err(|e| e.to_string())?;
-    }
-    let bytes = w.into_inner().map_err(|e| e.to_string())?;
-    String::from_utf8(bytes).map_err(|e| e.to_string())
 }
 
 /// The figures plotted when the user names none: for each coil its EMF, inductance, Q and
@@ -572,83 +469,4 @@ pub fn write_outputs(
         }
     }
     Ok(written)
-}
-
-/// The `sweep` command: solves the points not yet in `DIR`'s journal (all of them without
-/// `resume`), recording each as it finishes; then writes the outputs and removes the
-/// journal. Interrupted (Ctrl-C, SIGTERM), it writes `sweep.csv` and `sweep.json` of the
-/// finished points, keeps the journal and exits with status 130; `--resume` continues.
-pub(crate) fn run_resumable(
-    out: &Path,
-    raw: &RawCase,
-    src: &SourceInfo,
-    case: &Case,
-    shard: Option<(usize, usize)>,
-    resume: bool,
-    plot: &[String],
-) -> Result<(), i32> {
-    use crate::journal::{Journal, Opened};
-    let (journal, opened) =
-        Journal::open(out, journal_header(src, case, shard), resume).map_err(|e| {
-            eprintln!("error: {e}");
-            2
-        })?;
-    match opened {
-        Opened::Fresh {
-            discarded_earlier: true,
-        } => eprintln!(
-            "note: the unfinished sweep in {} was discarded (use --resume to continue one)",
-            out.display()
-        ),
-        Opened::Fresh { .. } if resume => {
-            eprintln!(
-                "note: nothing to resume in {}: solving every point",
-                out.display()
-            )
-        }
-        Opened::Resumed { points, torn } => eprintln!(
-            "resuming: {points} points already done{}",
-            if torn > 0 {
-                format!(" ({torn} damaged journal lines dropped)")
-            } else {
-                String::new()
-            }
-        ),
-        Opened::Fresh { .. } => {}
-    }
-    crate::limits::set_concurrent_solves(rayon::current_num_threads());
-    crate::interrupt::set_graceful(true);
-    let t0 = std::time::Instant::now();
-    let (rec, complete) =
-        run_sweep_journaled(raw, src, case, shard, true, &journal).map_err(|e| {
-            eprintln!("error: {e}");
-            1
-        })?;
-    let secs = t0.elapsed().as_secs_f64();
-    if !complete {
-        write_outputs(out, &rec, &[], "case units").map_err(|e| {
-            eprintln!("error: {e}");
-            1
-        })?;
-        eprintln!(
-            "interrupted: {} points done, kept in {}/sweep.csv and sweep.json; continue with `fluxpick sweep {} --out {} --resume`",
-            rec.points.len(),
-            out.display(),
-            src.name,
-            out.display()
-        );
-        return Err(crate::interrupt::EXIT_INTERRUPTED);
-    }
-    let status = crate::cli::finish_sweep(out, &rec, plot, secs);
-    // the journal goes once sweep.json provably holds every point
-    let written = std::fs::read_to_string(out.join("sweep.json"))
-        .ok()
-        .and_then(|t| serde_json::from_str::<SweepRecord>(&t).ok())
-        .is_some_and(|r| r == rec);
-    if written {
-        if let Err(e) = journal.finish() {
-            eprintln!("warning: {e}");
-        }
-    }
-    status
 }

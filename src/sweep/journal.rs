@@ -22,7 +22,7 @@ use std::time::{Duration, Instant};
 
 use serde::{Deserialize, Serialize};
 
-use crate::sweep::{PointResult, SweepRecord};
+use super::record::{csv_text, PointResult, SweepRecord};
 use fluxpick_postproc::atomic_write;
 
 /// File name of the journal inside the sweep's output folder.
@@ -196,7 +196,7 @@ impl Journal {
         st.done.insert(p.index, p);
         if st.last_csv.is_none_or(|t| t.elapsed() >= CSV_INTERVAL) {
             let rec = self.record_of(&st.done);
-            let csv = crate::sweep::csv_text(&rec)?;
+            let csv = csv_text(&rec)?;
             atomic_write(&self.dir.join("sweep.csv"), csv.as_bytes())
                 .map_err(|e| format!("cannot write {}/sweep.csv: {e}", self.dir.display()))?;
             st.last_csv = Some(Instant::now());
