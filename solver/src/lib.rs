@@ -54,6 +54,7 @@ pub mod bh;
 pub mod discretisation;
 pub mod element;
 pub mod estimate;
+pub mod export;
 pub mod field;
 pub mod harmonic;
 pub mod krylov;
@@ -67,11 +68,14 @@ pub mod setup;
 pub mod statics;
 
 pub use discretisation::{Discretisation, Order};
+pub use export::{ExportError, StaticSystem};
 pub use field::{Field, Locator};
 pub use harmonic::{solve_harmonic, HarmonicPlan, HarmonicSolution};
 pub use problem::{Problem, RegionMaterial, Spread, Winding, WindingRegion};
 pub use setup::{SetupStats, SolverSetup};
-pub use statics::{solve_static, solve_static_with, SourceFn, StaticSolution, Timings};
+pub use statics::{
+    solve_static, solve_static_with, static_system, SourceFn, StaticSolution, Timings,
+};
 
 /// Magnetic constant μ0 in H/m (4π·10⁻⁷, the pre-2019 exact value; the 2019 SI value differs
 /// by 5·10⁻¹⁰ relative).

@@ -9,6 +9,7 @@ use std::time::Instant;
 use crate::assembly::scatter_vector;
 use crate::discretisation::{Discretisation, Order, FIXED};
 use crate::element::{local_matrices, point_basis, Basis, Geometry, Local, Reluctivity, P1, P2};
+use crate::export::StaticSystem;
 use crate::field::{Field, Locator};
 use crate::linsolve::{relative_residual, RESIDUAL_TOLERANCE};
 use crate::problem::{Problem, RegionMaterial};
@@ -107,6 +108,12 @@ pub fn solve_static_with(p: &Problem, sources: &[SourceFn]) -> Result<StaticSolu
     setup.finish_static(asm)
 }
 
+/// The assembled stiffness matrix and right-hand sides of `p` (see
+/// [`SolverSetup::static_system`]).
+pub fn static_system(p: &Problem) -> Result<StaticSystem, SolveError> {
+    SolverSetup::new(p)?.static_system(&p.materials)
+}
+
 /// A static system assembled on the set-up's pattern, not yet solved.
 pub(crate) struct StaticAssembly {
     nu: Arc<Vec<Reluctivity>>,
@@ -133,6 +140,26 @@ impl SolverSetup {
     ) -> Result<StaticSolution, SolveError> {
         let asm = self.assemble_static(materials, sources, true)?;
         self.finish_static(asm)
+    }
+
+    /// The static system K x = F with these materials, assembled as in
+    /// [`SolverSetup::solve_static`] but not solved (no ordering, analysis or factorisation
+    /// is made for it): K over the node unknowns, one right-hand side per winding at 1 A
+    /// and one for the applied field. See [`StaticSystem`] for the layout and the Matrix
+    /// Market export.
+    pub fn static_system(&self, materials: &[RegionMaterial]) -> Result<StaticSystem, SolveError> {
+        let asm = self.assemble_static(materials, &[], false)?;
+        let d = self.discretisation();
+        let mut columns: Vec<String> = self.inner.windings.iter().map(|w| w.name.clone()).collect();
+        if self.inner.background.is_some() {
+            columns.push("background".into());
+        }
+        Ok(StaticSystem::new(
+            d,
+            self.pattern().to_csmat(asm.values),
+            &asm.rhs,
+            columns,
+        ))
     }
 
     /// Assembles K and the right-hand sides; with `analyse`, the ordering and the symbolic
