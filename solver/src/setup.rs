@@ -90,6 +90,13 @@ pub(crate) struct Inner {
     assemblies: AtomicUsize,
 }
 
+// A sweep's threads share one set-up (and one frequency plan): both must stay Send + Sync.
+const _: fn() = || {
+    fn send_sync<T: Send + Sync>() {}
+    send_sync::<SolverSetup>();
+    send_sync::<crate::HarmonicPlan>();
+};
+
 /// What a set-up has made so far (for tests and reports).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct SetupStats {
