@@ -12,9 +12,17 @@
 //!
 //! is complex *symmetric* (not Hermitian). Passive conductive parts carry only induced
 //! current: in planar form each is a solid conductor with I = 0 (the return flows in the same
-//! part); in axisymmetric form u = 0 (closed loops). The system is solved by a sparse LU with a
-//! fill-reducing ordering (faer): Cholesky and LDLᴴ assume a Hermitian matrix and would
-//! silently return a wrong answer here, so this module uses LU only.
+//! part); in axisymmetric form u = 0 (closed loops).
+//!
+//! Cholesky and LDLᴴ assume a Hermitian matrix and would silently return a wrong answer
+//! here. The node block K + jωM is solved by GMRES ([`crate::krylov`]) preconditioned with
+//! the real Cholesky factorisation of K + ωσM, which bounds the spectrum of the
+//! preconditioned matrix to the segment from 1 to j whatever the mesh; the conductor
+//! unknowns ψ are eliminated through a small dense Schur complement (one more inner solve
+//! per conductor), all the inner solves run as one batch. K + ωσM has the pattern of the
+//! static stiffness, so its ordering and symbolic analysis are the [`SolverSetup`]'s: a
+//! frequency sweep ([`HarmonicPlan::solve`]) refactorises numerically only, and so does a
+//! plan made with other materials through the same set-up ([`SolverSetup::harmonic_plan`]).
 
 use std::f64::consts::TAU;
 use std::sync::Arc;
@@ -23,14 +31,14 @@ use std::time::Instant;
 use faer::c64;
 use rayon::prelude::*;
 
-use crate::assembly::Pattern;
 use crate::discretisation::{Discretisation, Order, FIXED};
-use crate::element::{local_matrices, Basis, Local, Reluctivity, P1, P2};
+use crate::element::{Basis, Local, Reluctivity, P1, P2};
 use crate::field::{Field, Locator};
 use crate::krylov::gmres_batch;
-use crate::linsolve::{CholeskyAnalysis, RESIDUAL_TOLERANCE};
-use crate::problem::{Problem, Spread};
-use crate::statics::{background_potential, Density, Timings};
+use crate::linsolve::{Cholesky, RESIDUAL_TOLERANCE};
+use crate::problem::{Problem, RegionMaterial, Spread};
+use crate::setup::SolverSetup;
+use crate::statics::{background_potential, locals, Density, Timings};
 use crate::{Formulation, SolveError, MU0};
 
 /// A region whose conductor voltage is an unknown.
@@ -188,42 +196,43 @@ pub fn solve_harmonic(p: &Problem, frequency: f64) -> Result<HarmonicSolution, S
 type BackgroundRhs = ([f64; 2], Vec<f64>, Vec<f64>, Vec<f64>);
 
 /// Everything of a time-harmonic problem that does not depend on the frequency: the
-/// discretisation, the stiffness and conductivity-mass matrices on a fixed pattern, the
-/// symbolic Cholesky analysis, the constraint borders and the source vectors. A frequency
-/// sweep builds it once and calls [`HarmonicPlan::solve`] per frequency (numeric
-/// factorisation and solves only).
+/// set-up (discretisation, pattern, symbolic Cholesky analysis), the stiffness and
+/// conductivity-mass matrices on the pattern, the constraint borders and the source vectors.
+/// A frequency sweep builds it once and calls [`HarmonicPlan::solve`] per frequency
+/// (numeric factorisation and solves only).
 pub struct HarmonicPlan {
-    disc: Arc<Discretisation>,
-    locator: Arc<Locator>,
+    setup: SolverSetup,
     nu: Arc<Vec<Reluctivity>>,
     sigma: Vec<f64>,
     constraints: Vec<Constraint>,
-    pattern: Pattern,
     /// Stiffness K and conductivity mass σM values on the pattern.
     kvals: Vec<f64>,
     mvals: Vec<f64>,
-    analysis: CholeskyAnalysis,
     /// Constraint borders b_k (over the node unknowns) and d_k.
     bvec: Vec<Vec<f64>>,
     dk: Vec<f64>,
     /// Per winding: node and constraint right-hand sides at 1 A.
-    winding_rhs: Vec<(Vec<f64>, Vec<f64>)>,
+    winding_rhs: RealRhs,
     /// Applied field: b, −(ν−ν0)/ν K A_b, M_σ A_b (node part), b_kᵀ A_b (constraints).
     background: Option<BackgroundRhs>,
     densities: Vec<Vec<Density>>,
-    setup: Timings,
+    timings: Timings,
 }
 
 impl HarmonicPlan {
+    /// The plan of `p` with its own set-up (use [`SolverSetup::harmonic_plan`] to share one).
     pub fn new(p: &Problem) -> Result<Self, SolveError> {
-        match p.order {
-            Order::Linear => plan_with::<3, P1>(p),
-            Order::Quadratic => plan_with::<6, P2>(p),
-        }
+        let setup = SolverSetup::new(p)?;
+        let mut plan = setup.harmonic_plan(&p.materials)?;
+        drop(setup);
+        plan.timings.setup += plan.setup.setup_seconds();
+        // K and σM are all a frequency needs (K + jωσM is formed from them)
+        plan.setup.release_assembly_map();
+        Ok(plan)
     }
 
     pub fn n_dofs(&self) -> usize {
-        self.disc.n_dofs + self.constraints.len()
+        self.setup.n_dofs() + self.constraints.len()
     }
 
     /// Solves at `frequency` (Hz, > 0) reusing the symbolic analysis.
@@ -232,38 +241,46 @@ impl HarmonicPlan {
     }
 }
 
-fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, SolveError> {
-    let mut t = Timings::default();
-    let t0 = Instant::now();
-    let d = Discretisation::new(p.mesh, p.formulation, p.order, &p.dirichlet);
-    if d.n_dofs == 0 {
-        return Err(SolveError::NoUnknowns);
-    }
-    crate::sanity::check_reference(&d)?;
-    let image = d.exterior.as_ref().map(|e| e.region);
-    let mut nu = Vec::with_capacity(d.region_count);
-    let mut sigma = vec![0.0; d.region_count];
-    for r in 0..d.region_count {
-        if Some(r as u32) == image {
-            let e = d.exterior.as_ref().expect("image");
-            nu.push(Reluctivity::KelvinImage {
-                nu0: 1.0 / MU0,
-                center: [e.center[0] + e.offset[0], e.center[1] + e.offset[1]],
-                radius: e.radius,
-            });
-        } else {
-            let m = p
-                .materials
-                .get(r)
-                .ok_or(SolveError::MissingMaterial { region: r as u32 })?;
-            nu.push(Reluctivity::Constant(m.nu));
-            sigma[r] = m.sigma;
+impl SolverSetup {
+    /// The frequency-independent part of a time-harmonic solve with these region materials
+    /// (ν and σ per region id): K and σM refilled on the set-up's pattern, whose ordering and
+    /// symbolic analysis serve K + ωσM at every frequency.
+    pub fn harmonic_plan(&self, materials: &[RegionMaterial]) -> Result<HarmonicPlan, SolveError> {
+        match self.discretisation().order {
+            Order::Linear => plan_with::<3, P1>(self, materials),
+            Order::Quadratic => plan_with::<6, P2>(self, materials),
         }
     }
-    // Stranded windings carry no eddy currents; solid ones are constraints.
+
+    /// The time-harmonic solve ([`solve_harmonic`]) at `frequency` with these materials.
+    pub fn solve_harmonic(
+        &self,
+        materials: &[RegionMaterial],
+        frequency: f64,
+    ) -> Result<HarmonicSolution, SolveError> {
+        self.harmonic_plan(materials)?.solve(frequency)
+    }
+}
+
+/// Reluctivity and conductivity per region, and the constraints.
+type Conductors = (Vec<Reluctivity>, Vec<f64>, Vec<Constraint>);
+
+/// Reluctivity and conductivity per region, and the regions whose voltage is an unknown:
+/// stranded windings carry no eddy currents; solid ones are constraints, and so (in planar
+/// form) is every other conductive region.
+fn conductors(s: &SolverSetup, materials: &[RegionMaterial]) -> Result<Conductors, SolveError> {
+    let d = s.discretisation();
+    let nu = s.reluctivities(materials)?;
+    let image = d.exterior.as_ref().map(|e| e.region);
+    let mut sigma = vec![0.0; d.region_count];
+    for (r, sg) in sigma.iter_mut().enumerate() {
+        if Some(r as u32) != image {
+            *sg = materials[r].sigma;
+        }
+    }
     let mut constraints = Vec::new();
     let mut in_winding = vec![false; d.region_count];
-    for (w, wd) in p.windings.iter().enumerate() {
+    for (w, wd) in s.inner.windings.iter().enumerate() {
         for wr in &wd.regions {
             in_winding[wr.region as usize] = true;
             match wr.spread {
@@ -282,7 +299,7 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
             }
         }
     }
-    if p.formulation == Formulation::Planar {
+    if d.formulation == Formulation::Planar {
         for r in 0..d.region_count {
             if sigma[r] > 0.0 && !in_winding[r] {
                 constraints.push(Constraint {
@@ -292,6 +309,17 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
             }
         }
     }
+    Ok((nu, sigma, constraints))
+}
+
+fn plan_with<const N: usize, B: Basis<N>>(
+    s: &SolverSetup,
+    materials: &[RegionMaterial],
+) -> Result<HarmonicPlan, SolveError> {
+    let mut t = Timings::default();
+    let t0 = Instant::now();
+    let d: &Discretisation = s.discretisation();
+    let (nu, sigma, constraints) = conductors(s, materials)?;
     // Constraint index of every cell (FIXED when its region carries none).
     let mut extra = vec![FIXED; d.n_cells()];
     for c in 0..d.n_cells() {
@@ -302,66 +330,85 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
             extra[c] = k as u32;
         }
     }
-    let nk = constraints.len();
-    let nd = d.n_dofs;
     t.setup = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
-    // the ordering needs only the mesh: it runs beside the assembly
-    let (ordering, (pattern, loc, kvals, mvals)) = rayon::join(
-        || crate::ordering::nested_dissection(&d),
-        || {
-            let mut pattern = Pattern::new(&d);
-            let loc: Vec<Local<N>> = (0..d.n_cells())
-                .into_par_iter()
-                .map(|c| {
-                    local_matrices::<N, B>(
-                        &d.vertices(c),
-                        nu[d.cell_region[c] as usize],
-                        d.formulation,
-                    )
-                })
-                .collect();
-            // K and σM on the node pattern (K + jωσM and K + ωσM are formed per frequency).
-            let kvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
-                let l = &loc[c];
-                let mut m = vec![0.0; N * N];
-                for i in 0..N {
-                    for j in 0..N {
-                        m[i * N + j] = l.stiffness[i][j];
-                    }
+    let work = || {
+        let loc: Vec<Local<N>> = locals::<N, B>(&nu, d);
+        // K and σM on the node pattern (K + jωσM and K + ωσM are formed per frequency).
+        let kvals: Vec<f64> = s.assemble(|c| {
+            let l = &loc[c];
+            let mut m = vec![0.0; N * N];
+            for i in 0..N {
+                for j in 0..N {
+                    m[i * N + j] = l.stiffness[i][j];
                 }
-                Some(m)
-            });
-            let mvals: Vec<f64> = pattern.assemble(d.n_cells(), |c| {
-                let l = &loc[c];
-                let s = sigma[d.cell_region[c] as usize];
-                if s == 0.0 {
-                    return None;
+            }
+            Some(m)
+        });
+        let mvals: Vec<f64> = s.assemble(|c| {
+            let l = &loc[c];
+            let sg = sigma[d.cell_region[c] as usize];
+            if sg == 0.0 {
+                return None;
+            }
+            let mut m = vec![0.0; N * N];
+            for i in 0..N {
+                for j in 0..N {
+                    m[i * N + j] = sg * l.mass[i][j];
                 }
-                let mut m = vec![0.0; N * N];
-                for i in 0..N {
-                    for j in 0..N {
-                        m[i * N + j] = s * l.mass[i][j];
-                    }
-                }
-                Some(m)
-            });
-            // K and σM are all a frequency needs (K + jωσM is formed from them)
-            pattern.release_assembly_map();
-            (pattern, loc, kvals, mvals)
-        },
-    );
-    let axi = p.formulation == Formulation::Axisymmetric;
-    let border = |l: &Local<N>, s: f64| -> [f64; N] {
-        let mut b = if axi { l.load_inv_r } else { l.load };
-        for x in b.iter_mut() {
-            *x *= s;
-        }
-        b
+            }
+            Some(m)
+        });
+        (loc, kvals, mvals)
     };
-    // Border: the constraint rows −jω b_kᵀ A + jω d_k ψ_k, b_k = ∫σ N g w, d_k = ∫σ g² w.
-    let mut bvec = vec![vec![0.0; nd]; nk];
+    // the ordering and the analysis need only the pattern: they run beside the assembly
+    let ((loc, kvals, mvals), waited) = s.analysis_beside(work);
+    t.symbolic = waited;
+    let (bvec, dk) = borders(d, &loc, &sigma, &extra, constraints.len());
+    let (winding_rhs, densities) = winding_rhs(s, &loc, &constraints)?;
+    let background = s
+        .inner
+        .background
+        .map(|b| background_rhs(d, &loc, materials, &sigma, &extra, constraints.len(), b));
+    t.assemble = (t0.elapsed().as_secs_f64() - waited).max(0.0);
+    s.analysis()?;
+    Ok(HarmonicPlan {
+        setup: s.clone(),
+        nu: Arc::new(nu),
+        sigma,
+        constraints,
+        kvals,
+        mvals,
+        bvec,
+        dk,
+        winding_rhs,
+        background,
+        densities,
+        timings: t,
+    })
+}
+
+/// A solid conductor's local border ∫σ N g w (g = 1/r axisymmetric, 1 planar).
+fn border<const N: usize>(l: &Local<N>, s: f64, axi: bool) -> [f64; N] {
+    let mut b = if axi { l.load_inv_r } else { l.load };
+    for x in b.iter_mut() {
+        *x *= s;
+    }
+    b
+}
+
+/// The constraint rows −jω b_kᵀ A + jω d_k ψ_k: b_k = ∫σ N g w over the node unknowns and
+/// d_k = ∫σ g² w.
+fn borders<const N: usize>(
+    d: &Discretisation,
+    loc: &[Local<N>],
+    sigma: &[f64],
+    extra: &[u32],
+    nk: usize,
+) -> (Vec<Vec<f64>>, Vec<f64>) {
+    let axi = d.formulation == Formulation::Axisymmetric;
+    let mut bvec = vec![vec![0.0; d.n_dofs]; nk];
     let mut dk = vec![0.0; nk];
     for c in 0..d.n_cells() {
         if extra[c] == FIXED {
@@ -370,7 +417,7 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
         let k = extra[c] as usize;
         let l = &loc[c];
         let s = sigma[d.cell_region[c] as usize];
-        let b = border(l, s);
+        let b = border(l, s, axi);
         for (i, &node) in d.cell(c).iter().enumerate() {
             let dof = d.node_dof[node as usize];
             if dof != FIXED {
@@ -379,23 +426,36 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
         }
         dk[k] += s * l.measure_inv_r2;
     }
-    // Right-hand sides (node part, constraint part): each winding at 1 A, then the
-    // background.
-    let mut area = vec![0.0; d.region_count];
-    for (c, l) in loc.iter().enumerate() {
-        area[d.cell_region[c] as usize] += l.area;
-    }
-    let scale = if axi { TAU } else { 1.0 };
-    let mut rhs: Vec<(Vec<f64>, Vec<f64>)> = Vec::new();
+    (bvec, dk)
+}
+
+/// Real right-hand sides (node part, constraint part), one per winding.
+type RealRhs = Vec<(Vec<f64>, Vec<f64>)>;
+
+/// Right-hand sides (node part, constraint part) of each winding at 1 A, and the current
+/// densities per ampere of the stranded ones.
+fn winding_rhs<const N: usize>(
+    s: &SolverSetup,
+    loc: &[Local<N>],
+    constraints: &[Constraint],
+) -> Result<(RealRhs, Vec<Vec<Density>>), SolveError> {
+    let d = s.discretisation();
+    let (nd, nk) = (d.n_dofs, constraints.len());
+    let scale = if d.formulation == Formulation::Axisymmetric {
+        TAU
+    } else {
+        1.0
+    };
+    let mut rhs: RealRhs = Vec::new();
     let mut densities = Vec::new();
-    for (w, wd) in p.windings.iter().enumerate() {
+    for (w, wd) in s.inner.windings.iter().enumerate() {
         let mut f = vec![0.0; nd];
         let mut g = vec![0.0; nk];
         let mut dens = Vec::new();
         for wr in &wd.regions {
             match wr.spread {
                 Spread::Uniform => {
-                    let a = area[wr.region as usize];
+                    let a = s.region_area(wr.region);
                     if a.is_nan() || a <= 0.0 {
                         return Err(SolveError::EmptyWinding {
                             winding: wd.name.clone(),
@@ -433,79 +493,69 @@ fn plan_with<const N: usize, B: Basis<N>>(p: &Problem) -> Result<HarmonicPlan, S
         densities.push(dens);
         rhs.push((f, g));
     }
-    let mut background = None;
-    if let Some(b) = p.background {
-        let nu0 = 1.0 / MU0;
-        let mut fk = vec![0.0; nd];
-        let mut fm = vec![0.0; nd];
-        let mut g = vec![0.0; nk];
-        for (c, l) in loc.iter().enumerate() {
-            if Some(d.cell_region[c]) == image {
-                continue;
-            }
-            let r = d.cell_region[c] as usize;
-            let nu_c = p.materials[r].nu;
-            let s = sigma[r];
-            let magnetic = (nu_c - nu0).abs() > 1e-12 * nu0;
-            if !magnetic && s == 0.0 {
-                continue;
-            }
-            let nodes = d.cell(c);
-            let ab: Vec<f64> = nodes
-                .iter()
-                .map(|&nd| background_potential(p.formulation, b, d.points[nd as usize]))
-                .collect();
-            for i in 0..N {
-                let dof = d.node_dof[nodes[i] as usize];
-                if dof == FIXED {
-                    continue;
-                }
-                let ka: f64 = (0..N).map(|j| l.stiffness[i][j] * ab[j]).sum();
-                let ma: f64 = (0..N).map(|j| l.mass[i][j] * ab[j]).sum();
-                fk[dof as usize] -= (nu_c - nu0) / nu_c * ka;
-                fm[dof as usize] += s * ma;
-            }
-            if extra[c] != FIXED {
-                let bb = border(l, s);
-                let sum: f64 = (0..N).map(|i| bb[i] * ab[i]).sum();
-                g[extra[c] as usize] += sum;
-            }
-        }
-        background = Some((b, fk, fm, g));
-    }
-    t.assemble = t0.elapsed().as_secs_f64();
-    let t0 = Instant::now();
-    let analysis = CholeskyAnalysis::with_ordering(&pattern, ordering?)?;
-    t.symbolic = t0.elapsed().as_secs_f64();
-    let disc = Arc::new(d);
-    let locator = Arc::new(Locator::new(&disc));
-    Ok(HarmonicPlan {
-        disc,
-        locator,
-        nu: Arc::new(nu),
-        sigma,
-        constraints,
-        pattern,
-        kvals,
-        mvals,
-        analysis,
-        bvec,
-        dk,
-        winding_rhs: rhs,
-        background,
-        densities,
-        setup: t,
-    })
+    Ok((rhs, densities))
 }
+
+/// The applied field's parts of the right-hand side (see [`BackgroundRhs`]).
+fn background_rhs<const N: usize>(
+    d: &Discretisation,
+    loc: &[Local<N>],
+    materials: &[RegionMaterial],
+    sigma: &[f64],
+    extra: &[u32],
+    nk: usize,
+    b: [f64; 2],
+) -> BackgroundRhs {
+    let axi = d.formulation == Formulation::Axisymmetric;
+    let image = d.exterior.as_ref().map(|e| e.region);
+    let nu0 = 1.0 / MU0;
+    let nd = d.n_dofs;
+    let mut fk = vec![0.0; nd];
+    let mut fm = vec![0.0; nd];
+    let mut g = vec![0.0; nk];
+    for (c, l) in loc.iter().enumerate() {
+        if Some(d.cell_region[c]) == image {
+            continue;
+        }
+        let r = d.cell_region[c] as usize;
+        let nu_c = materials[r].nu;
+        let s = sigma[r];
+        let magnetic = (nu_c - nu0).abs() > 1e-12 * nu0;
+        if !magnetic && s == 0.0 {
+            continue;
+        }
+        let nodes = d.cell(c);
+        let ab: Vec<f64> = nodes
+            .iter()
+            .map(|&nd| background_potential(d.formulation, b, d.points[nd as usize]))
+            .collect();
+        for i in 0..N {
+            let dof = d.node_dof[nodes[i] as usize];
+            if dof == FIXED {
+                continue;
+            }
+            let ka: f64 = (0..N).map(|j| l.stiffness[i][j] * ab[j]).sum();
+            let ma: f64 = (0..N).map(|j| l.mass[i][j] * ab[j]).sum();
+            fk[dof as usize] -= (nu_c - nu0) / nu_c * ka;
+            fm[dof as usize] += s * ma;
+        }
+        if extra[c] != FIXED {
+            let bb = border(l, s, axi);
+            let sum: f64 = (0..N).map(|i| bb[i] * ab[i]).sum();
+            g[extra[c] as usize] += sum;
+        }
+    }
+    (b, fk, fm, g)
+}
+
+/// Right-hand sides (node part, constraint part) at one frequency.
+type Rhs = Vec<(Vec<c64>, Vec<c64>)>;
 
 fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, SolveError> {
     let omega = TAU * frequency;
     let jw = c64::new(0.0, omega);
-    let zero = c64::new(0.0, 0.0);
-    let mut t = plan.setup;
-    let (pattern, bvec, dk) = (&plan.pattern, &plan.bvec, &plan.dk);
-    let nd = plan.disc.n_dofs;
-    let nk = plan.constraints.len();
+    let mut t = plan.timings;
+    let pattern = plan.setup.pattern();
     let t0 = Instant::now();
     let values: Vec<c64> = plan
         .kvals
@@ -519,7 +569,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
         .zip(&plan.mvals)
         .map(|(k, m)| k + omega * m)
         .collect();
-    let mut rhs: Vec<(Vec<c64>, Vec<c64>)> = plan
+    let mut rhs: Rhs = plan
         .winding_rhs
         .iter()
         .map(|(f, g)| {
@@ -540,11 +590,72 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
     }
     t.assemble += t0.elapsed().as_secs_f64();
     let t0 = Instant::now();
-    let chol = plan.analysis.factor(pattern, &pvalues)?;
+    let chol = plan.setup.analysis()?.factor(pattern, &pvalues)?;
     t.factor = t0.elapsed().as_secs_f64();
 
     let t0 = Instant::now();
-    let apply = |x: &[c64]| pattern.mul(&values, x);
+    let (xs, krylov_iterations) = bordered_solve(plan, &chol, &values, &rhs, jw)?;
+    t.solve = t0.elapsed().as_secs_f64();
+    let max_residual = bordered_residual(plan, &values, &xs, &rhs, jw)?;
+    let krylov_solves = plan.constraints.len() + rhs.len();
+    let disc = plan.setup.discretisation();
+    let locator = plan.setup.locator();
+    let mut unit = Vec::new();
+    let mut unit_psi = Vec::new();
+    let nw = plan.winding_rhs.len();
+    for x in xs.iter().take(nw) {
+        let (f, psi) = expand(disc, &locator, &plan.nu, x, None)?;
+        unit.push(f);
+        unit_psi.push(psi);
+    }
+    let (background, background_psi) = match &plan.background {
+        Some((b, ..)) => {
+            let (f, psi) = expand(disc, &locator, &plan.nu, &xs[nw], Some(*b))?;
+            (Some(f), psi)
+        }
+        None => (None, vec![]),
+    };
+    Ok(HarmonicSolution {
+        frequency,
+        disc: disc.clone(),
+        locator: locator.clone(),
+        nu: plan.nu.clone(),
+        sigma: plan.sigma.clone(),
+        constraints: plan.constraints.clone(),
+        unit,
+        unit_psi,
+        background,
+        background_psi,
+        densities: plan.densities.clone(),
+        timings: t,
+        nnz: pattern.nnz(),
+        max_residual,
+        krylov_iterations,
+        krylov_solves,
+    })
+}
+
+/// −jω b_kᵀ x: constraint k's border row applied to the node part x.
+fn border_row(bvec: &[Vec<f64>], jw: c64, k: usize, x: &[c64]) -> c64 {
+    let zero = c64::new(0.0, 0.0);
+    bvec[k].iter().zip(x).fold(zero, |s, (b, x)| s + x * *b) * (-jw)
+}
+
+/// Solves the bordered system for every right-hand side: the node block by preconditioned
+/// GMRES, the constraints by their Schur complement. Returns the solutions (node part, then
+/// ψ) and the GMRES iterations over all inner solves.
+fn bordered_solve(
+    plan: &HarmonicPlan,
+    chol: &Cholesky<'_>,
+    values: &[c64],
+    rhs: &Rhs,
+    jw: c64,
+) -> Result<(Vec<Vec<c64>>, usize), SolveError> {
+    let zero = c64::new(0.0, 0.0);
+    let (pattern, bvec, dk) = (plan.setup.pattern(), &plan.bvec, &plan.dk);
+    let nd = plan.setup.n_dofs();
+    let nk = plan.constraints.len();
+    let apply = |x: &[c64]| pattern.mul(values, x);
     // P⁻¹ for a batch of complex vectors: their real and imaginary parts as the columns
     // of one block solve.
     let precond = |vs: &[&[c64]]| -> Vec<Vec<c64>> {
@@ -604,9 +715,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
     }
     let x0s = sols.split_off(nk);
     let ys = sols;
-    let row = |k: usize, x: &[c64]| -> c64 {
-        bvec[k].iter().zip(x).fold(zero, |s, (b, x)| s + x * *b) * (-jw)
-    };
+    let row = |k: usize, x: &[c64]| border_row(bvec, jw, k, x);
     let mut schur = vec![vec![zero; nk]; nk];
     for i in 0..nk {
         for j in 0..nk {
@@ -614,7 +723,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
         }
     }
     let mut xs: Vec<Vec<c64>> = Vec::with_capacity(rhs.len());
-    for (x0, (_, g)) in x0s.into_iter().zip(&rhs) {
+    for (x0, (_, g)) in x0s.into_iter().zip(rhs) {
         let mut r: Vec<c64> = (0..nk).map(|k| g[k] - row(k, &x0)).collect();
         let psi = dense_solve(schur.clone(), &mut r).ok_or(SolveError::Singular)?;
         let mut x = x0;
@@ -626,12 +735,25 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
         x.extend_from_slice(&psi);
         xs.push(x);
     }
-    t.solve = t0.elapsed().as_secs_f64();
-    // Residual of the whole bordered system.
+    Ok((xs, iterations))
+}
+
+/// The largest relative residual of the whole bordered system over the solutions; an error
+/// above [`RESIDUAL_TOLERANCE`].
+fn bordered_residual(
+    plan: &HarmonicPlan,
+    values: &[c64],
+    xs: &[Vec<c64>],
+    rhs: &Rhs,
+    jw: c64,
+) -> Result<f64, SolveError> {
+    let (pattern, bvec, dk) = (plan.setup.pattern(), &plan.bvec, &plan.dk);
+    let nd = plan.setup.n_dofs();
+    let nk = plan.constraints.len();
     let mut max_residual: f64 = 0.0;
-    for (x, (f, g)) in xs.iter().zip(&rhs) {
+    for (x, (f, g)) in xs.iter().zip(rhs) {
         let (a, psi) = x.split_at(nd);
-        let mut ra = pattern.mul(&values, a);
+        let mut ra = pattern.mul(values, a);
         for (k, b) in bvec.iter().enumerate() {
             for (ri, bi) in ra.iter_mut().zip(b) {
                 *ri -= jw * *bi * psi[k];
@@ -639,7 +761,7 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
         }
         let mut num: f64 = ra.iter().zip(f).map(|(a, b)| (a - b).norm_sqr()).sum();
         for k in 0..nk {
-            num += (row(k, a) + jw * dk[k] * psi[k] - g[k]).norm_sqr();
+            num += (border_row(bvec, jw, k, a) + jw * dk[k] * psi[k] - g[k]).norm_sqr();
         }
         let den: f64 = f.iter().chain(g).map(|v| v.norm_sqr()).sum::<f64>().sqrt();
         let r = if den > 0.0 {
@@ -655,81 +777,55 @@ fn solve_plan(plan: &HarmonicPlan, frequency: f64) -> Result<HarmonicSolution, S
             });
         }
     }
-    let krylov_iterations = iterations;
-    let krylov_solves = nk + rhs.len();
-    let (disc, locator, nu) = (&plan.disc, &plan.locator, &plan.nu);
-    let expand = |x: &[c64], bg: Option<[f64; 2]>| -> Result<([Field; 2], Vec<c64>), SolveError> {
-        let mut re = vec![0.0; disc.points.len()];
-        let mut im = vec![0.0; disc.points.len()];
-        for nd in 0..disc.points.len() {
-            let dof = disc.node_dof[nd];
-            if dof != FIXED {
-                re[nd] = x[dof as usize].re;
-                im[nd] = x[dof as usize].im;
-            }
+    Ok(max_residual)
+}
+
+/// The re/im fields of a solution (the applied potential added on the physical nodes when
+/// `bg` is given) and its constraint values ψ.
+fn expand(
+    disc: &Arc<Discretisation>,
+    locator: &Arc<Locator>,
+    nu: &Arc<Vec<Reluctivity>>,
+    x: &[c64],
+    bg: Option<[f64; 2]>,
+) -> Result<([Field; 2], Vec<c64>), SolveError> {
+    let mut re = vec![0.0; disc.points.len()];
+    let mut im = vec![0.0; disc.points.len()];
+    for nd in 0..disc.points.len() {
+        let dof = disc.node_dof[nd];
+        if dof != FIXED {
+            re[nd] = x[dof as usize].re;
+            im[nd] = x[dof as usize].im;
         }
-        if let Some(b) = bg {
-            for c in (0..disc.n_cells()).filter(|&c| !disc.is_image(c)) {
-                for &nd in disc.cell(c) {
-                    let nd = nd as usize;
-                    let dof = disc.node_dof[nd];
-                    let reaction = if dof == FIXED {
-                        0.0
-                    } else {
-                        x[dof as usize].re
-                    };
-                    re[nd] = reaction + background_potential(disc.formulation, b, disc.points[nd]);
-                }
-            }
-        }
-        for c in 0..disc.n_cells() {
-            for &nd in disc.cell(c) {
-                if !(re[nd as usize].is_finite() && im[nd as usize].is_finite()) {
-                    return Err(SolveError::NotFinite {
-                        region: disc.cell_region[c],
-                    });
-                }
-            }
-        }
-        let mk = |a| Field {
-            disc: disc.clone(),
-            locator: locator.clone(),
-            nu: nu.clone(),
-            a,
-        };
-        Ok(([mk(re), mk(im)], x[disc.n_dofs..].to_vec()))
-    };
-    let mut unit = Vec::new();
-    let mut unit_psi = Vec::new();
-    let nw = plan.winding_rhs.len();
-    for x in xs.iter().take(nw) {
-        let (f, psi) = expand(x, None)?;
-        unit.push(f);
-        unit_psi.push(psi);
     }
-    let (background, background_psi) = match &plan.background {
-        Some((b, ..)) => {
-            let (f, psi) = expand(&xs[nw], Some(*b))?;
-            (Some(f), psi)
+    if let Some(b) = bg {
+        for c in (0..disc.n_cells()).filter(|&c| !disc.is_image(c)) {
+            for &nd in disc.cell(c) {
+                let nd = nd as usize;
+                let dof = disc.node_dof[nd];
+                let reaction = if dof == FIXED {
+                    0.0
+                } else {
+                    x[dof as usize].re
+                };
+                re[nd] = reaction + background_potential(disc.formulation, b, disc.points[nd]);
+            }
         }
-        None => (None, vec![]),
-    };
-    Ok(HarmonicSolution {
-        frequency,
+    }
+    for c in 0..disc.n_cells() {
+        for &nd in disc.cell(c) {
+            if !(re[nd as usize].is_finite() && im[nd as usize].is_finite()) {
+                return Err(SolveError::NotFinite {
+                    region: disc.cell_region[c],
+                });
+            }
+        }
+    }
+    let mk = |a| Field {
         disc: disc.clone(),
         locator: locator.clone(),
         nu: nu.clone(),
-        sigma: plan.sigma.clone(),
-        constraints: plan.constraints.clone(),
-        unit,
-        unit_psi,
-        background,
-        background_psi,
-        densities: plan.densities.clone(),
-        timings: t,
-        nnz: pattern.nnz(),
-        max_residual,
-        krylov_iterations,
-        krylov_solves,
-    })
+        a,
+    };
+    Ok(([mk(re), mk(im)], x[disc.n_dofs..].to_vec()))
 }

@@ -10,6 +10,12 @@
 //! (Kelvin inversion ρ' = R²/ρ) glued to the circular outer boundary: in planar form the
 //! image is plain air; in axisymmetric form it has ν' = ν0 (ρ'/R)².
 //!
+//! The three solves (static [`solve_static`], time-harmonic [`solve_harmonic`], Newton
+//! [`nonlinear::solve_nonlinear`]) share one [`SolverSetup`]: the discretisation, the sparsity
+//! pattern, its fill-reducing ordering and symbolic Cholesky analysis, the winding
+//! densities. The free functions make one per solve; keep one to solve again with other
+//! region materials, which refills values only.
+//!
 //! ```
 //! use fluxpick_mesh::{BoundaryEdge, Mesh, Side};
 //! use fluxpick_solver::{solve_static, Formulation, Order, Problem, RegionMaterial, Winding,
@@ -48,6 +54,7 @@ pub mod bh;
 pub mod discretisation;
 pub mod element;
 pub mod estimate;
+pub mod export;
 pub mod field;
 pub mod harmonic;
 pub mod krylov;
@@ -57,13 +64,18 @@ pub mod ordering;
 pub mod problem;
 pub mod quadrature;
 pub mod sanity;
+pub mod setup;
 pub mod statics;
 
 pub use discretisation::{Discretisation, Order};
+pub use export::{ExportError, StaticSystem};
 pub use field::{Field, Locator};
 pub use harmonic::{solve_harmonic, HarmonicPlan, HarmonicSolution};
 pub use problem::{Problem, RegionMaterial, Spread, Winding, WindingRegion};
-pub use statics::{solve_static, solve_static_with, SourceFn, StaticSolution, Timings};
+pub use setup::{SetupStats, SolverSetup};
+pub use statics::{
+    solve_static, solve_static_with, static_system, SourceFn, StaticSolution, Timings,
+};
 
 /// Magnetic constant μ0 in H/m (4π·10⁻⁷, the pre-2019 exact value; the 2019 SI value differs
 /// by 5·10⁻¹⁰ relative).

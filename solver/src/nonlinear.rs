@@ -7,12 +7,12 @@
 //!
 //! (in air the bracket is ν0 c(x); the applied field's own ν0 term integrates to zero, as in
 //! the linear solve). The Jacobian is `J_ij = ∫ [ν c_i·c_j + 2 ν'(|B|²)(B·c_i)(B·c_j)] w`,
-//! symmetric and positive definite when dH/dB > 0, so the real Cholesky factorises it with
-//! its symbolic analysis made once. Each step is damped by a backtracking line search on
+//! symmetric and positive definite when dH/dB > 0, so the real Cholesky factorises it. The
+//! Jacobian has the pattern of the static stiffness: the starting linear solve and every
+//! iteration share the [`SolverSetup`]'s one ordering and one symbolic analysis, and each
+//! iteration refills the Jacobian's values on its pattern. Each step is damped by a backtracking line search on
 //! ‖R‖; the iteration stops when ‖R‖ and the update are both below tolerance, and reports
 //! failure with its history otherwise.
-
-use std::sync::Arc;
 
 use crate::assembly::{scatter_vector, Pattern};
 use crate::bh::BhCurve;
@@ -20,9 +20,10 @@ use crate::discretisation::{Discretisation, Order, FIXED};
 use crate::element::{point_basis, Basis, Geometry, Reluctivity, P1, P2};
 use crate::field::Field;
 use crate::linsolve::CholeskyAnalysis;
-use crate::problem::Problem;
+use crate::problem::{Problem, RegionMaterial};
 use crate::quadrature::DEGREE5;
-use crate::statics::{background_potential, solve_static, Density, SourceFn, StaticSolution};
+use crate::setup::SolverSetup;
+use crate::statics::{add_source, background_potential, Density, SourceFn, StaticSolution};
 use crate::{SolveError, MU0};
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -82,7 +83,8 @@ struct System<'a, const N: usize> {
     /// A_b at every node (0 when there is no applied field, and in the image).
     ab: Vec<f64>,
     f: Vec<f64>,
-    pattern: &'a Pattern,
+    /// The set-up whose pattern the Jacobian is assembled on.
+    setup: &'a SolverSetup,
 }
 
 impl<const N: usize> System<'_, N> {
@@ -168,8 +170,7 @@ impl<const N: usize> System<'_, N> {
     }
 
     fn jacobian<B: Basis<N>>(&self, x: &[f64]) -> Vec<f64> {
-        self.pattern
-            .assemble(self.d.n_cells(), |c| Some(self.local::<B>(c, x, true).1))
+        self.setup.assemble(|c| Some(self.local::<B>(c, x, true).1))
     }
 }
 
@@ -229,65 +230,60 @@ pub fn solve_nonlinear_with(
     sources: &[SourceFn],
     opts: NewtonOptions,
 ) -> Result<NonlinearSolution, NonlinearError> {
-    match p.order {
-        Order::Linear => solve_with::<3, P1>(p, curves, currents, sources, opts),
-        Order::Quadratic => solve_with::<6, P2>(p, curves, currents, sources, opts),
+    SolverSetup::new(p)?.solve_nonlinear_with(&p.materials, curves, currents, sources, opts)
+}
+
+impl SolverSetup {
+    /// The Newton solve ([`solve_nonlinear`]) with these region materials (the starting
+    /// point's ν, and ν of the regions without a curve). The starting linear solve and the
+    /// iterations use the set-up's one ordering and symbolic analysis.
+    pub fn solve_nonlinear(
+        &self,
+        materials: &[RegionMaterial],
+        curves: &[Option<BhCurve>],
+        currents: &[f64],
+        opts: NewtonOptions,
+    ) -> Result<NonlinearSolution, NonlinearError> {
+        self.solve_nonlinear_with(materials, curves, currents, &[], opts)
+    }
+
+    /// As [`SolverSetup::solve_nonlinear`], with distributed current densities added.
+    pub fn solve_nonlinear_with(
+        &self,
+        materials: &[RegionMaterial],
+        curves: &[Option<BhCurve>],
+        currents: &[f64],
+        sources: &[SourceFn],
+        opts: NewtonOptions,
+    ) -> Result<NonlinearSolution, NonlinearError> {
+        match self.discretisation().order {
+            Order::Linear => solve_with::<3, P1>(self, materials, curves, currents, sources, opts),
+            Order::Quadratic => {
+                solve_with::<6, P2>(self, materials, curves, currents, sources, opts)
+            }
+        }
     }
 }
 
-fn solve_with<const N: usize, B: Basis<N>>(
-    p: &Problem,
-    curves: &[Option<BhCurve>],
-    currents: &[f64],
-    sources: &[SourceFn],
-    opts: NewtonOptions,
-) -> Result<NonlinearSolution, NonlinearError> {
-    // The linear solve gives the discretisation, the densities and the starting point.
-    let linear = solve_static(p)?;
-    let d: Arc<Discretisation> = linear.disc.clone();
-    let laws: Vec<Law> = (0..d.region_count)
-        .map(|r| match curves.get(r).and_then(|c| c.clone()) {
-            Some(c) if d.exterior.as_ref().is_none_or(|e| e.region as usize != r) => Law::Curve(c),
-            _ => Law::Linear(linear.nu[r]),
-        })
-        .collect();
-    let mut ab = vec![0.0; d.points.len()];
-    if let Some(b) = p.background {
-        for (n, v) in ab.iter_mut().enumerate() {
-            *v = background_potential(d.formulation, b, d.points[n]);
-        }
-    }
-    let mut f = source_vector::<N, B>(&d, &linear.densities, currents);
-    for src in sources {
-        for c in 0..d.n_cells() {
-            let g = Geometry::new(d.vertices(c));
-            let mut v = [0.0; N];
-            for q in &crate::quadrature::DEGREE6 {
-                let pb = point_basis::<N, B>(&g, q.l, d.formulation);
-                let dw = q.w * g.area * pb.weight * src(pb.x);
-                for i in 0..N {
-                    v[i] += dw * pb.n[i];
-                }
-            }
-            scatter_vector(&d, c, &v, &mut f);
-        }
-    }
-    let pattern = Pattern::new(&d);
-    let sys = System::<N> {
-        d: &d,
-        laws,
-        ab,
-        f,
-        pattern: &pattern,
-    };
-    // nodes of physical cells (they carry A_b in the fields of the linear solve)
+/// Nodes of physical cells (they carry A_b in the fields of the linear solve).
+fn physical_nodes(d: &Discretisation) -> Vec<bool> {
     let mut phys = vec![false; d.points.len()];
     for c in (0..d.n_cells()).filter(|&c| !d.is_image(c)) {
         for &n in d.cell(c) {
             phys[n as usize] = true;
         }
     }
-    // starting point: the linear solution for these currents
+    phys
+}
+
+/// The unknowns of the linear solution for these currents (the reaction potential).
+fn starting_point(
+    d: &Discretisation,
+    linear: &StaticSolution,
+    currents: &[f64],
+    ab: &[f64],
+    phys: &[bool],
+) -> Vec<f64> {
     let mut x = vec![0.0; d.n_dofs];
     for (n, &dof) in d.node_dof.iter().enumerate() {
         if dof == FIXED {
@@ -301,16 +297,89 @@ fn solve_with<const N: usize, B: Basis<N>>(
             .sum();
         if let Some(bg) = &linear.background {
             // the background field holds A_b + reaction on physical nodes
-            v += if phys[n] {
-                bg.a[n] - sys.ab[n]
-            } else {
-                bg.a[n]
-            };
+            v += if phys[n] { bg.a[n] - ab[n] } else { bg.a[n] };
         }
         x[dof as usize] = v;
     }
-    let analysis =
-        CholeskyAnalysis::with_ordering(&pattern, crate::ordering::nested_dissection(&d)?)?;
+    x
+}
+
+fn solve_with<const N: usize, B: Basis<N>>(
+    s: &SolverSetup,
+    materials: &[RegionMaterial],
+    curves: &[Option<BhCurve>],
+    currents: &[f64],
+    sources: &[SourceFn],
+    opts: NewtonOptions,
+) -> Result<NonlinearSolution, NonlinearError> {
+    // The linear solve gives the densities and the starting point.
+    let linear = s.solve_static(materials)?;
+    let d: &Discretisation = s.discretisation();
+    let laws: Vec<Law> = (0..d.region_count)
+        .map(|r| match curves.get(r).and_then(|c| c.clone()) {
+            Some(c) if d.exterior.as_ref().is_none_or(|e| e.region as usize != r) => Law::Curve(c),
+            _ => Law::Linear(linear.nu[r]),
+        })
+        .collect();
+    let mut ab = vec![0.0; d.points.len()];
+    if let Some(b) = s.inner.background {
+        for (n, v) in ab.iter_mut().enumerate() {
+            *v = background_potential(d.formulation, b, d.points[n]);
+        }
+    }
+    let mut f = source_vector::<N, B>(d, &linear.densities, currents);
+    for src in sources {
+        add_source::<N, B>(d, *src, &mut f);
+    }
+    let sys = System::<N> {
+        d,
+        laws,
+        ab,
+        f,
+        setup: s,
+    };
+    let phys = physical_nodes(d);
+    let x = starting_point(d, &linear, currents, &sys.ab, &phys);
+    let (x, report) = iterate::<N, B>(&sys, s.analysis()?, x, opts)?;
+    // the total field (A_b added on physical nodes, as the linear solve's fields are)
+    let mut a = vec![0.0; d.points.len()];
+    for (n, v) in a.iter_mut().enumerate() {
+        let dof = d.node_dof[n];
+        if dof != FIXED {
+            *v = x[dof as usize];
+        }
+    }
+    if s.inner.background.is_some() {
+        for (n, v) in a.iter_mut().enumerate() {
+            if phys[n] {
+                *v += sys.ab[n];
+            }
+        }
+    }
+    let field = Field {
+        disc: s.discretisation().clone(),
+        locator: linear.locator.clone(),
+        nu: linear.nu.clone(),
+        a,
+    };
+    let densities = linear.densities.clone();
+    Ok(NonlinearSolution {
+        field,
+        report,
+        linear,
+        densities,
+    })
+}
+
+/// Newton–Raphson from `x` with a backtracking line search on ‖R‖.
+fn iterate<const N: usize, B: Basis<N>>(
+    sys: &System<'_, N>,
+    analysis: &CholeskyAnalysis,
+    mut x: Vec<f64>,
+    opts: NewtonOptions,
+) -> Result<(Vec<f64>, NewtonReport), NonlinearError> {
+    let d = sys.d;
+    let pattern = sys.setup.pattern();
     let mut res = sys.residual::<B>(&x);
     let scale = norm(&sys.residual::<B>(&vec![0.0; d.n_dofs]))
         .max(norm(&sys.f))
@@ -329,7 +398,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
             });
         }
         let jac = sys.jacobian::<B>(&x);
-        let chol = analysis.factor(&pattern, &jac)?;
+        let chol = analysis.factor(pattern, &jac)?;
         let neg: Vec<f64> = res.iter().map(|v| -v).collect();
         let delta = chol.solve(&[neg]).pop().expect("one solve");
         // backtracking line search on ‖R‖
@@ -355,7 +424,7 @@ fn solve_with<const N: usize, B: Basis<N>>(
         iterations += 1;
         history.push(norm(&res) / scale);
         // NaN or infinite unknowns stop the run, naming the region where they appeared
-        crate::sanity::check_finite_dofs(&d, &x)?;
+        crate::sanity::check_finite_dofs(d, &x)?;
         if !x.iter().all(|v| v.is_finite()) {
             return Err(NonlinearError::NotConverged {
                 iterations,
@@ -366,38 +435,13 @@ fn solve_with<const N: usize, B: Basis<N>>(
             break;
         }
     }
-    // the total field (A_b added on physical nodes, as the linear solve's fields are)
-    let mut a = vec![0.0; d.points.len()];
-    for (n, v) in a.iter_mut().enumerate() {
-        let dof = d.node_dof[n];
-        if dof != FIXED {
-            *v = x[dof as usize];
-        }
-    }
-    if p.background.is_some() {
-        for (n, v) in a.iter_mut().enumerate() {
-            if phys[n] {
-                *v += sys.ab[n];
-            }
-        }
-    }
-    let locator = linear.locator.clone();
-    let field = Field {
-        disc: d.clone(),
-        locator: locator.clone(),
-        nu: linear.nu.clone(),
-        a,
-    };
-    let densities = linear.densities.clone();
-    Ok(NonlinearSolution {
-        field,
-        report: NewtonReport {
+    Ok((
+        x,
+        NewtonReport {
             iterations,
             residual_history: history,
         },
-        linear,
-        densities,
-    })
+    ))
 }
 
 /// The residual and Jacobian at a given unknown vector, for tests of the Jacobian against
@@ -408,24 +452,25 @@ pub fn residual_and_jacobian(
     currents: &[f64],
     x: &[f64],
 ) -> Result<(Vec<f64>, Vec<f64>, Pattern), SolveError> {
-    let linear = solve_static(p)?;
-    let d = linear.disc.clone();
-    let pattern = Pattern::new(&d);
+    let s = SolverSetup::new(p)?;
+    let nu = s.reluctivities(&p.materials)?;
+    let densities = s.static_densities()?;
+    let d: &Discretisation = s.discretisation();
     macro_rules! go {
         ($n:literal, $b:ty) => {{
             let laws: Vec<Law> = (0..d.region_count)
                 .map(|r| match curves.get(r).and_then(|c| c.clone()) {
                     Some(c) => Law::Curve(c),
-                    None => Law::Linear(linear.nu[r]),
+                    None => Law::Linear(nu[r]),
                 })
                 .collect();
-            let f = source_vector::<$n, $b>(&d, &linear.densities, currents);
+            let f = source_vector::<$n, $b>(d, &densities, currents);
             let sys = System::<$n> {
-                d: &d,
+                d,
                 laws,
                 ab: vec![0.0; d.points.len()],
                 f,
-                pattern: &pattern,
+                setup: &s,
             };
             (sys.residual::<$b>(x), sys.jacobian::<$b>(x))
         }};
@@ -434,5 +479,5 @@ pub fn residual_and_jacobian(
         Order::Linear => go!(3, P1),
         Order::Quadratic => go!(6, P2),
     };
-    Ok((r, j, pattern))
+    Ok((r, j, s.pattern().clone()))
 }
