@@ -1,6 +1,8 @@
 //! The fields stage: the case's model and mesh solved by the solver the case needs
 //! (static, time-harmonic, or Newton for B-H curves at 0 Hz; at 50/60 Hz with B-H curves an
-//! effective permeability per region, iterated), handed over as [`Fields`].
+//! effective permeability per region, iterated), handed over as [`Fields`]. One
+//! [`SolverSetup`] (discretisation, pattern, ordering, symbolic analysis) serves every solve
+//! of the stage: the effective-permeability passes and Newton's iterations refill values.
 
 use std::f64::consts::SQRT_2;
 
@@ -8,8 +10,8 @@ use fluxpick_mesh::Mesh;
 use fluxpick_postproc::fields::{Fields, Solved};
 use fluxpick_postproc::figures::region_flux;
 use fluxpick_solver::bh::BhCurve;
-use fluxpick_solver::nonlinear::{solve_nonlinear, NewtonOptions, NonlinearError};
-use fluxpick_solver::{solve_harmonic, solve_static, Problem, RegionMaterial};
+use fluxpick_solver::nonlinear::{NewtonOptions, NonlinearError};
+use fluxpick_solver::{Problem, RegionMaterial, SolverSetup};
 use num_complex::Complex64 as C;
 
 use crate::build::{has_eddy_currents, Model, Owner};
@@ -28,6 +30,10 @@ pub struct SolveNotes {
     /// At f > 0 with B-H curves: the effective-permeability iteration's passes and whether
     /// it converged.
     pub effective: Option<(usize, bool)>,
+    /// Seconds spent on the shared set-up (discretisation, pattern, ordering, analysis).
+    pub setup_s: f64,
+    /// With B-H curves: what the shared set-up made (orderings, analyses, assemblies).
+    pub setup: Option<fluxpick_solver::SetupStats>,
 }
 
 /// The B-H curve of each region's material (None for linear ones).
@@ -69,12 +75,17 @@ fn sources(case: &Case) -> (Vec<C>, Option<C>) {
     (currents, bg)
 }
 
-/// One linear solve of `problem` (harmonic when the case has eddy currents).
-fn linear(case: &Case, problem: &Problem) -> Result<Fields, StudyError> {
+/// One linear solve with `materials` (harmonic when the case has eddy currents): only the
+/// values are refilled on the set-up's pattern.
+fn linear(
+    case: &Case,
+    setup: &SolverSetup,
+    materials: &[RegionMaterial],
+) -> Result<Fields, StudyError> {
     let solved = if has_eddy_currents(case) {
-        Solved::Harmonic(solve_harmonic(problem, case.frequency)?)
+        Solved::Harmonic(setup.solve_harmonic(materials, case.frequency)?)
     } else {
-        Solved::Static(solve_static(problem)?)
+        Solved::Static(setup.solve_static(materials)?)
     };
     let (currents, bg) = sources(case);
     Ok(Fields::new(solved, currents, bg)?)
@@ -86,17 +97,14 @@ fn linear(case: &Case, problem: &Problem) -> Result<Fields, StudyError> {
 /// saturates). Returns the materials, the passes made and whether it converged.
 fn effective_materials(
     case: &Case,
-    problem: &Problem,
+    setup: &SolverSetup,
+    materials: &[RegionMaterial],
     curves: &[Option<BhCurve>],
 ) -> Result<(Vec<RegionMaterial>, usize, bool), StudyError> {
-    let mut mats = problem.materials.clone();
+    let mut mats = materials.to_vec();
     let mut brackets = vec![(0.0f64, f64::INFINITY); mats.len()];
     for pass in 1..=EFFECTIVE_PASSES {
-        let p = Problem {
-            materials: mats.clone(),
-            ..problem.clone()
-        };
-        let tot = linear(case, &p)?.total;
+        let tot = linear(case, setup, &mats)?.total;
         let mut change: f64 = 0.0;
         for (r, c) in curves.iter().enumerate() {
             let Some(c) = c else { continue };
@@ -135,7 +143,7 @@ pub fn solve(
 ) -> Result<(Fields, SolveNotes), StudyError> {
     let ac = case.frequency > 0.0;
     let saturating = curves.iter().any(|c| c.is_some());
-    let mut problem = Problem {
+    let problem = Problem {
         mesh,
         formulation: model.formulation,
         order: model.order,
@@ -147,14 +155,38 @@ pub fn solve(
             .map(|b| [b.b * b.direction[0], b.b * b.direction[1]]),
         dirichlet: model.dirichlet.clone(),
     };
-    let mut notes = SolveNotes { effective: None };
+    if !saturating {
+        // one solve: the one-shot solver frees the pattern's assembly map before the
+        // factorisation, where memory peaks (a kept set-up holds it for later refills)
+        let solved = if has_eddy_currents(case) {
+            Solved::Harmonic(fluxpick_solver::solve_harmonic(&problem, case.frequency)?)
+        } else {
+            Solved::Static(fluxpick_solver::solve_static(&problem)?)
+        };
+        let (currents, bg) = sources(case);
+        let notes = SolveNotes {
+            effective: None,
+            setup_s: 0.0,
+            setup: None,
+        };
+        return Ok((Fields::new(solved, currents, bg)?, notes));
+    }
+    let setup = SolverSetup::new(&problem)?;
+    let mut notes = SolveNotes {
+        effective: None,
+        setup_s: setup.setup_seconds(),
+        setup: None,
+    };
+    let mut materials = problem.materials.clone();
     if ac && saturating {
-        let (mats, passes, converged) = effective_materials(case, &problem, curves)?;
-        problem.materials = mats;
+        let (mats, passes, converged) = effective_materials(case, &setup, &materials, curves)?;
+        materials = mats;
         notes.effective = Some((passes, converged));
     }
-    if ac || !saturating {
-        return Ok((linear(case, &problem)?, notes));
+    if ac {
+        let fields = linear(case, &setup, &materials)?;
+        notes.setup = Some(setup.stats());
+        return Ok((fields, notes));
     }
     let currents: Vec<f64> = case
         .coils
@@ -162,13 +194,77 @@ pub fn solve(
         .map(|c| c.current)
         .chain(case.conductors.iter().map(|c| c.current))
         .collect();
-    let nl = solve_nonlinear(&problem, curves, &currents, NewtonOptions::default()).map_err(
-        |e| match e {
+    let nl = setup
+        .solve_nonlinear(&materials, curves, &currents, NewtonOptions::default())
+        .map_err(|e| match e {
             NonlinearError::Solve(s) => StudyError::Solve(s),
             e => StudyError::Newton(e.to_string()),
-        },
-    )?;
+        })?;
+    notes.setup = Some(setup.stats());
     let (currents, bg) = sources(case);
     let fields = Fields::new(Solved::Static(nl.linear), currents, bg)?;
     Ok((fields.with_newton(nl.field, nl.report), notes))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A ferrite rod in an axial field at `frequency` with an invented saturating curve.
+    fn rod(b: f64, frequency: f64) -> Case {
+        let text = format!(
+            r#"
+[model]
+title = "saturating rod"
+symmetry = "axisymmetric"
+frequency = {frequency}
+[domain]
+rect = {{ min = [0, -300], max = [300, 300] }}
+boundary = "open"
+mesh_size = 30
+[background]
+b = {b}
+direction = [0, 1]
+[materials.ferrite]
+mu_r = 1989.4368
+bh = [[0, 0], [10, 0.025], [25, 0.06], [50, 0.11], [100, 0.19], [200, 0.3], [500, 0.42], [2000, 0.48], [8000, 0.5]]
+[[part]]
+name = "rod"
+material = "ferrite"
+rect = {{ min = [0, -75], max = [12.5, 75] }}
+mesh_size = 4
+"#
+        );
+        crate::case::load_case_str("rod.toml", &text).expect("valid case")
+    }
+
+    fn stats(case: &Case) -> (SolveNotes, fluxpick_solver::SetupStats) {
+        let model = Model::new(case).unwrap();
+        let mesh = fluxpick_mesh::generate(&model.spec).unwrap();
+        let curves = curves(case, &model).unwrap();
+        let (_, notes) = solve(case, &model, &mesh, &curves).unwrap();
+        let s = notes.setup.expect("a saturating solve keeps its set-up");
+        (notes, s)
+    }
+
+    /// The effective-permeability passes at 50 Hz refill values on one pattern: one ordering
+    /// and one symbolic analysis for every pass (wiring check of the stage; the physics of
+    /// the passes is tested in tests/saturation.rs).
+    #[test]
+    fn effective_passes_share_one_ordering_and_analysis() {
+        let (notes, s) = stats(&rod(3e-2, 50.0));
+        let (passes, converged) = notes.effective.unwrap();
+        assert!(converged && passes > 2, "{passes} passes");
+        assert_eq!((s.orderings, s.analyses), (1, 1), "{s:?}");
+        // every pass and the final solve assemble once
+        assert_eq!(s.assemblies, passes + 1, "{s:?}");
+    }
+
+    /// Newton at 0 Hz makes one ordering and one analysis, its starting solve included.
+    #[test]
+    fn newton_makes_one_ordering_and_analysis() {
+        let (_, s) = stats(&rod(3e-2, 0.0));
+        assert_eq!((s.orderings, s.analyses), (1, 1), "{s:?}");
+        assert!(s.assemblies > 2, "{s:?}");
+    }
 }

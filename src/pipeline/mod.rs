@@ -94,7 +94,7 @@ pub fn solve_on(
     let errors = ErrorModel::new(&fields, mesh.exterior.as_ref().map(|e| e.region));
     let figures = figures::figures(case, &model, &fields, &errors, &curves);
     let current_density = fields.current_density();
-    let solve = solve_figures(&fields, mesh_s, t0.elapsed().as_secs_f64());
+    let solve = solve_figures(&fields, &notes, mesh_s, t0.elapsed().as_secs_f64());
     let results = figures::results(case, &model, &mesh, &fields, &errors, figures, solve);
     let run = Run {
         model,
@@ -111,6 +111,7 @@ pub fn solve_on(
 /// The solver's own figures: times per stage, matrix size, residual, method.
 fn solve_figures(
     fields: &fluxpick_postproc::fields::Fields,
+    notes: &SolveNotes,
     mesh_s: f64,
     post_s: f64,
 ) -> SolveFigures {
@@ -132,7 +133,7 @@ fn solve_figures(
     };
     SolveFigures {
         mesh_s,
-        assemble_s: timings.setup + timings.assemble,
+        assemble_s: notes.setup_s + timings.setup + timings.assemble,
         factor_s: timings.symbolic + timings.factor,
         solve_s: timings.solve,
         post_s,
