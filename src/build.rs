@@ -84,22 +84,8 @@ fn side_of(s: DomainSide) -> Side {
     }
 }
 
-fn extent(shape: &Shape) -> f64 {
-    match shape {
-        Shape::Rect { min, max } => (max[0] - min[0]).min(max[1] - min[1]),
-        Shape::Circle { radius, .. } => 2.0 * radius,
-        Shape::Ellipse { semi_axes, .. } => 2.0 * semi_axes[0].min(semi_axes[1]),
-        Shape::Annulus { inner, outer, .. } => outer - inner,
-        Shape::Polygon(p) => {
-            let lo = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min));
-            let hi = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max));
-            (hi[0] - lo[0]).min(hi[1] - lo[1])
-        }
-    }
-}
-
 fn region(shape: &Shape, size: Option<f64>, background: f64) -> RegionInput {
-    let default = (extent(shape) * DEFAULT_REGION_SIZE_FRACTION).min(background);
+    let default = (shape.smallest_extent() * DEFAULT_REGION_SIZE_FRACTION).min(background);
     RegionInput {
         shape: shape.clone(),
         max_edge: Some(size.unwrap_or(default).min(background)),

@@ -281,19 +281,7 @@ pub struct Run {
 }
 
 fn centroid(shape: &Shape) -> [f64; 2] {
-    match shape {
-        Shape::Rect { min, max } => [0.5 * (min[0] + max[0]), 0.5 * (min[1] + max[1])],
-        Shape::Circle { center, .. }
-        | Shape::Ellipse { center, .. }
-        | Shape::Annulus { center, .. } => *center,
-        Shape::Polygon(p) => {
-            let n = p.len() as f64;
-            [
-                p.iter().map(|q| q[0]).sum::<f64>() / n,
-                p.iter().map(|q| q[1]).sum::<f64>() / n,
-            ]
-        }
-    }
+    shape.centroid()
 }
 
 /// Bounding box `[min, max]` of the space a coil encloses: axisymmetric, from the axis to
@@ -316,25 +304,8 @@ fn coil_span(case: &Case, window: &CoilWindow) -> [[f64; 2]; 2] {
 
 /// Bounding box `(min, max)` of a shape.
 pub fn shape_bbox(shape: &Shape) -> ([f64; 2], [f64; 2]) {
-    match shape {
-        Shape::Rect { min, max } => (*min, *max),
-        Shape::Circle { center, radius } => (
-            [center[0] - radius, center[1] - radius],
-            [center[0] + radius, center[1] + radius],
-        ),
-        Shape::Ellipse { center, semi_axes } => (
-            [center[0] - semi_axes[0], center[1] - semi_axes[1]],
-            [center[0] + semi_axes[0], center[1] + semi_axes[1]],
-        ),
-        Shape::Annulus { center, outer, .. } => (
-            [center[0] - outer, center[1] - outer],
-            [center[0] + outer, center[1] + outer],
-        ),
-        Shape::Polygon(p) => (
-            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min)),
-            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max)),
-        ),
-    }
+    let b = shape.bbox();
+    (b.min, b.max)
 }
 
 /// Mean of |B · dir| along the part's middle cross-section (the line through its centroid

@@ -19,7 +19,6 @@
 
 pub mod error;
 pub mod expr;
-pub mod geom;
 pub mod model;
 pub mod raw;
 mod resolve;

@@ -2,7 +2,6 @@
 
 use std::fmt::Write as _;
 
-use super::geom;
 use super::model::*;
 use super::resolve::fmt_g;
 
@@ -43,7 +42,7 @@ pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
     let mut regions_area = 0.0;
     let mut out = Vec::new();
     let mut add = |who: Share, shape: &Shape, h: Option<f64>| {
-        let a = geom::area(shape, clip);
+        let a = shape.area(clip);
         regions_area += a;
         out.push((who, triangles(a, h.unwrap_or(h_air).min(h_air))));
     };
@@ -58,7 +57,7 @@ pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
             add(Share::Coil(i), s, c.mesh_size);
         }
     }
-    let domain_area = geom::area(&case.domain.shape, clip);
+    let domain_area = case.domain.shape.area(clip);
     out.push((
         Share::Air,
         triangles((domain_area - regions_area).max(0.0), h_air),

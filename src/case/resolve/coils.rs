@@ -10,7 +10,6 @@ use super::names::Names;
 use super::shapes::Carrier;
 use super::{fmt_g, sp, Ctx, Result};
 use crate::case::error::CaseErrorKind as K;
-use crate::case::geom;
 use crate::case::model::{Coil, CoilWindow, Domain, Shape, Wire};
 use crate::case::raw::{RawCase, RawCoil};
 
@@ -274,16 +273,16 @@ fn check_fit(
     windows: &[Side],
 ) -> Result<()> {
     let copper = turns * std::f64::consts::PI * wire.diameter * wire.diameter / 4.0;
-    let (smallest, _) = windows
-        .iter()
-        .map(|w| (geom::area(&w.0, cx.axisym), w))
-        .fold((f64::INFINITY, None), |acc, (a, w)| {
+    let (smallest, _) = windows.iter().map(|w| (w.0.area(cx.axisym), w)).fold(
+        (f64::INFINITY, None),
+        |acc, (a, w)| {
             if a < acc.0 {
                 (a, Some(w))
             } else {
                 acc
             }
-        });
+        },
+    );
     if copper > fill_factor * smallest {
         let u2 = cx.unit * cx.unit;
         let fit = wire::turns_that_fit(smallest, wire.diameter, fill_factor).floor();

@@ -4,7 +4,8 @@
 
 use super::{fmt_g, sp, Ctx, Result};
 use crate::case::error::CaseErrorKind as K;
-use crate::case::geom;
+use fluxpick_mesh::BBox;
+
 use crate::case::model::Domain;
 use crate::case::raw::{RawModel, RawRefinement};
 
@@ -127,7 +128,7 @@ pub(super) fn check_quasistatic(
     domain: &Domain,
 ) -> Result<()> {
     if let Some(f) = m.frequency.as_ref().filter(|_| frequency > 0.0) {
-        let (lo, hi) = geom::bbox(&domain.shape);
+        let BBox { min: lo, max: hi } = domain.shape.bbox();
         let size = (hi[0] - lo[0]).hypot(hi[1] - lo[1]);
         let wavelength = SPEED_OF_LIGHT / frequency;
         if size > MAX_DOMAIN_OVER_WAVELENGTH * wavelength {

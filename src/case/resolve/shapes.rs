@@ -4,11 +4,11 @@
 
 use std::ops::Range;
 
+use fluxpick_mesh::{points_collinear, polygon_area, polygon_self_intersection, BBox};
 use toml::Spanned;
 
 use super::{fmt_g, sp, Ctx, Result};
 use crate::case::error::CaseErrorKind as K;
-use crate::case::geom;
 use crate::case::model::{Domain, Shape};
 use crate::case::raw::{Pt, RawRect, ShapeKeys};
 
@@ -176,7 +176,7 @@ impl Ctx<'_> {
                 "list the corners as [[x, y], ...]",
             ));
         }
-        let (lo, hi) = geom::bbox(&Shape::Polygon(pts.clone()));
+        let BBox { min: lo, max: hi } = Shape::Polygon(pts.clone()).bbox();
         let scale = (hi[0] - lo[0]).powi(2) + (hi[1] - lo[1]).powi(2);
         let zero_area = || {
             self.err(
@@ -187,11 +187,11 @@ impl Ctx<'_> {
                 "its points must not all lie on one line",
             )
         };
-        if scale == 0.0 || geom::points_collinear(&pts) {
+        if scale == 0.0 || points_collinear(&pts) {
             return Err(zero_area());
         }
         // Before the area: the lobes of a figure of eight cancel in the signed area.
-        if geom::polygon_self_intersects(&pts) {
+        if polygon_self_intersection(&pts).is_some() {
             return Err(self.err(
                 K::BadPolygon,
                 sp(p),
@@ -200,7 +200,7 @@ impl Ctx<'_> {
                 "list the corners in order around the outline so that no edges cross",
             ));
         }
-        if geom::polygon_signed_area(&pts).abs() <= 1e-12 * scale {
+        if polygon_area(&pts).abs() <= 1e-12 * scale {
             return Err(zero_area());
         }
         Ok(Shape::Polygon(pts))
@@ -214,8 +214,8 @@ impl Ctx<'_> {
         key: &str,
         domain: &Domain,
     ) -> Result<()> {
-        let (lo, hi) = geom::bbox(shape);
-        if self.axisym && geom::area(shape, true) <= 0.0 {
+        let BBox { min: lo, max: hi } = shape.bbox();
+        if self.axisym && shape.area(true) <= 0.0 {
             return Err(self.err(
                 K::Axisymmetry,
                 Some(span.clone()),
@@ -241,7 +241,7 @@ impl Ctx<'_> {
                     || hi[1] > max[1] + tol
             }
             Shape::Circle { center, radius } => {
-                geom::max_distance_from(shape, *center) > radius * (1.0 + 1e-9)
+                shape.max_distance_from(*center) > radius * (1.0 + 1e-9)
             }
             _ => false,
         };
@@ -261,9 +261,9 @@ impl Ctx<'_> {
                 "enlarge [domain] or move the shape into it",
             ));
         }
-        let (dlo, dhi) = geom::bbox(&domain.shape);
+        let BBox { min: dlo, max: dhi } = domain.shape.bbox();
         let size = (dhi[0] - dlo[0]).hypot(dhi[1] - dlo[1]);
-        let width = geom::smallest_extent(shape);
+        let width = shape.smallest_extent();
         if width < MIN_FEATURE_FRACTION * size {
             return Err(self.err(
                 K::OutOfRange,
@@ -292,7 +292,7 @@ impl Ctx<'_> {
         earlier: &[Carrier],
     ) -> Result<()> {
         for c in earlier {
-            if geom::overlaps(shape, &c.shape, self.axisym) {
+            if shape.overlaps(&c.shape, self.axisym) {
                 let (line, _) = crate::case::error::line_col_of(&self.src.text, c.span.start);
                 return Err(self.err(
                     K::Overlap,
