@@ -9,7 +9,7 @@
 use fluxpick_mesh::{Cuts, MeshParams, MeshSpec, Outer, RegionInput, Shape, Side};
 use fluxpick_solver::{Formulation, Order, RegionMaterial, Spread, Winding, WindingRegion};
 
-use crate::case::{BoundaryKind, Case, ConductorKind, DomainSide, EdgeKind, Symmetry};
+use crate::case::{BoundaryKind, Case, ConductorKind, DomainSide, EdgeKind, MaterialId, Symmetry};
 
 /// Radius of the open-boundary disk relative to the farthest domain corner from its centre.
 pub const OPEN_DISK_MARGIN: f64 = 1.1;
@@ -35,8 +35,6 @@ pub enum BuildError {
     AxisymmetricDomainOffAxis(f64),
     #[error("the domain must be a rect or a circle")]
     DomainShape,
-    #[error("material `{0}` is not defined")]
-    UnknownMaterial(String),
 }
 
 /// The case turned into the library crates' inputs.
@@ -68,7 +66,7 @@ pub fn skin_depth(frequency: f64, mu_r: f64, sigma: f64) -> f64 {
 /// Default surface element size as a fraction of the skin depth, by element order
 /// (second order: a third, checked against the exact round-wire and plate solutions in
 /// the solver's tests; first order: a sixth).
-fn skin_fraction(order: Order) -> f64 {
+pub(crate) fn skin_fraction(order: Order) -> f64 {
     match order {
         Order::Quadratic => 1.0 / 3.0,
         Order::Linear => 1.0 / 6.0,
@@ -99,42 +97,37 @@ impl Model {
         let h = case.domain.mesh_size;
         let mut regions = Vec::new();
         let mut owners = vec![Owner::Air];
-        let order = if case.element_order == 1 {
-            Order::Linear
-        } else {
-            Order::Quadratic
-        };
+        let order = case.element_order;
         let mut skin = Vec::new();
         // A skin layer on every region that carries eddy currents at f > 0.
-        let mut layer = |r: &mut RegionInput, name: &str, material: &str, own: Option<f64>| {
-            let Some(m) = case.materials.get(material) else {
-                return;
+        let mut layer =
+            |r: &mut RegionInput, name: &str, material: MaterialId, own: Option<f64>| {
+                let m = case.material(material);
+                if case.frequency <= 0.0 || m.conductivity <= 0.0 {
+                    return;
+                }
+                let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
+                let size = own.unwrap_or(depth * skin_fraction(order));
+                let inside = r.max_edge.unwrap_or(h);
+                if size < inside {
+                    r.skin_edge = Some(size);
+                }
+                skin.push(SkinLayer {
+                    name: name.to_string(),
+                    depth_m: depth,
+                    surface_size_m: size.min(inside),
+                });
             };
-            if case.frequency <= 0.0 || m.conductivity <= 0.0 {
-                return;
-            }
-            let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
-            let size = own.unwrap_or(depth * skin_fraction(order));
-            let inside = r.max_edge.unwrap_or(h);
-            if size < inside {
-                r.skin_edge = Some(size);
-            }
-            skin.push(SkinLayer {
-                name: name.to_string(),
-                depth_m: depth,
-                surface_size_m: size.min(inside),
-            });
-        };
         for (i, p) in case.parts.iter().enumerate() {
             let mut r = region(&p.shape, p.mesh_size, h);
-            layer(&mut r, &p.name, &p.material, p.skin_mesh_size);
+            layer(&mut r, &p.name, p.material, p.skin_mesh_size);
             regions.push(r);
             owners.push(Owner::Part(i));
         }
         for (i, c) in case.conductors.iter().enumerate() {
             let mut r = region(&c.shape, c.mesh_size, h);
             if c.kind == ConductorKind::Solid {
-                layer(&mut r, &c.name, &c.material, c.skin_mesh_size);
+                layer(&mut r, &c.name, c.material, c.skin_mesh_size);
             }
             regions.push(r);
             owners.push(Owner::Conductor(i));
@@ -265,19 +258,17 @@ impl Model {
     }
 
     /// Material of every region id (air for coil windows and the exterior).
-    pub fn materials(&self, case: &Case) -> Result<Vec<RegionMaterial>, BuildError> {
-        let get = |name: &str| {
-            case.materials
-                .get(name)
-                .map(|m| RegionMaterial::from_mu_r(m.mu_r, m.conductivity))
-                .ok_or_else(|| BuildError::UnknownMaterial(name.to_string()))
+    pub fn materials(&self, case: &Case) -> Vec<RegionMaterial> {
+        let get = |id: MaterialId| {
+            let m = case.material(id);
+            RegionMaterial::from_mu_r(m.mu_r, m.conductivity)
         };
         self.owners
             .iter()
             .map(|o| match o {
-                Owner::Part(i) => get(&case.parts[*i].material),
-                Owner::Conductor(i) => get(&case.conductors[*i].material),
-                _ => Ok(RegionMaterial::from_mu_r(1.0, 0.0)),
+                Owner::Part(i) => get(case.parts[*i].material),
+                Owner::Conductor(i) => get(case.conductors[*i].material),
+                _ => RegionMaterial::from_mu_r(1.0, 0.0),
             })
             .collect()
     }

@@ -271,9 +271,6 @@ fn study_help(e: &StudyError) -> &'static str {
         StudyError::Build(B::DomainShape) => {
             "give [domain] a rect = { min = [..], max = [..] } or a circle = { center = [..], radius = R }"
         }
-        StudyError::Build(B::UnknownMaterial(_)) => {
-            "define the material in a [materials.NAME] table, or use air, copper or aluminium"
-        }
         StudyError::Curve(..) => {
             "check the material's B-H points: they start at [0, 0] and rise in both H and B"
         }

@@ -12,7 +12,7 @@
 
 use std::sync::RwLock;
 
-use crate::case::{element_shares, Case, Share};
+use crate::case::{element_shares, Case, Order, Share};
 
 /// Share of the available memory a run may plan to use (the rest for the system and for
 /// the estimate's error).
@@ -97,10 +97,10 @@ pub fn estimate(case: &Case) -> Estimate {
     let triangles = crate::case::estimated_elements(case);
     let eddy = crate::study::has_eddy_currents(case);
     let per = match (eddy, case.element_order) {
-        (false, 1) => BYTES_PER_TRIANGLE_STATIC_P1,
-        (false, _) => BYTES_PER_TRIANGLE_STATIC_P2,
-        (true, 1) => BYTES_PER_TRIANGLE_EDDY_P1,
-        (true, _) => BYTES_PER_TRIANGLE_EDDY_P2,
+        (false, Order::Linear) => BYTES_PER_TRIANGLE_STATIC_P1,
+        (false, Order::Quadratic) => BYTES_PER_TRIANGLE_STATIC_P2,
+        (true, Order::Linear) => BYTES_PER_TRIANGLE_EDDY_P1,
+        (true, Order::Quadratic) => BYTES_PER_TRIANGLE_EDDY_P2,
     };
     Estimate {
         triangles,

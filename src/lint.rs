@@ -9,7 +9,7 @@
 
 use serde::Serialize;
 
-use crate::case::{BoundaryKind, Case, DomainSide, Shape, Symmetry};
+use crate::case::{BoundaryKind, Case, DomainSide, MaterialId, Shape, Symmetry};
 use fluxpick_mesh::BBox;
 
 /// A part counts as a magnetic core (for the "far from any source" check) from this relative
@@ -86,17 +86,13 @@ struct Region<'a> {
 
 /// The edge the mesher uses at the surface of a conductive region at f > 0 (the skin layer of
 /// `crate::build`): `own`, or a third of the skin depth (a sixth at element order 1).
-fn skin_size(case: &Case, material: &str, own: Option<f64>) -> Option<f64> {
-    let m = case.materials.get(material)?;
+fn skin_size(case: &Case, material: MaterialId, own: Option<f64>) -> Option<f64> {
+    let m = case.material(material);
     if case.frequency <= 0.0 || m.conductivity <= 0.0 {
         return None;
     }
     let depth = crate::build::skin_depth(case.frequency, m.mu_r, m.conductivity);
-    let fraction = if case.element_order == 1 {
-        1.0 / 6.0
-    } else {
-        1.0 / 3.0
-    };
+    let fraction = crate::build::skin_fraction(case.element_order);
     Some(own.unwrap_or(depth * fraction))
 }
 
@@ -108,7 +104,7 @@ fn regions(case: &Case) -> Vec<Region<'_>> {
             name: &p.name,
             shape: &p.shape,
             mesh_size: p.mesh_size,
-            skin_size: skin_size(case, &p.material, p.skin_mesh_size),
+            skin_size: skin_size(case, p.material, p.skin_mesh_size),
         });
     }
     for (i, c) in case.conductors.iter().enumerate() {
@@ -117,7 +113,7 @@ fn regions(case: &Case) -> Vec<Region<'_>> {
             name: &c.name,
             shape: &c.shape,
             mesh_size: c.mesh_size,
-            skin_size: skin_size(case, &c.material, c.skin_mesh_size),
+            skin_size: skin_size(case, c.material, c.skin_mesh_size),
         });
     }
     for (i, c) in case.coils.iter().enumerate() {
@@ -229,10 +225,8 @@ pub fn lint(case: &Case) -> Vec<Warning> {
             }
         }
         for (i, p) in case.parts.iter().enumerate() {
-            let magnetic = case
-                .materials
-                .get(&p.material)
-                .is_some_and(|m| m.mu_r >= CORE_MU_R || m.bh.is_some());
+            let m = case.material(p.material);
+            let magnetic = m.mu_r >= CORE_MU_R || m.bh.is_some();
             if !magnetic || sources.is_empty() {
                 continue;
             }

@@ -75,7 +75,7 @@ fn pickup_figures(path: &Path, case: &Case) -> Result<(f64, f64, f64, f64, f64),
     let coil = case
         .circuit
         .as_ref()
-        .map(|c| c.coil.clone())
+        .map(|c| case.coil(c.coil).name.clone())
         .or_else(|| case.coils.first().map(|c| c.name.clone()))
         .ok_or_else(|| {
             fail(format!(

@@ -25,7 +25,7 @@ use num_complex::Complex64 as C;
 use serde::Serialize;
 
 use crate::build::{BuildError, Model, Owner};
-use crate::case::{Case, CoilWindow, ConductorKind, ProbeKind, Shape, Symmetry};
+use crate::case::{Case, CoilWindow, ConductorKind, MaterialId, ProbeKind, Shape, Symmetry};
 
 #[derive(Debug, thiserror::Error)]
 pub enum StudyError {
@@ -423,13 +423,13 @@ fn combine(parts: &[(C, &Phasor)], like: &Field, nk: usize) -> Phasor {
 
 /// Does the case need the time-harmonic solve (eddy currents somewhere)?
 pub fn has_eddy_currents(case: &Case) -> bool {
-    let sigma = |m: &str| case.materials.get(m).map_or(0.0, |m| m.conductivity);
+    let sigma = |m: MaterialId| case.material(m).conductivity;
     case.frequency > 0.0
-        && (case.parts.iter().any(|p| sigma(&p.material) > 0.0)
+        && (case.parts.iter().any(|p| sigma(p.material) > 0.0)
             || case
                 .conductors
                 .iter()
-                .any(|c| c.kind == ConductorKind::Solid && sigma(&c.material) > 0.0))
+                .any(|c| c.kind == ConductorKind::Solid && sigma(c.material) > 0.0))
 }
 
 /// Field ellipse of an rms phasor vector u + jv: semi-axes (rms, i.e. peak / √2) and the
@@ -560,7 +560,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
         Some(m) => fluxpick_mesh::generate_refined(&model.spec, m)?,
     };
     let mesh_s = t0.elapsed().as_secs_f64();
-    let materials = model.materials(case)?;
+    let materials = model.materials(case);
     let windings = model.windings(case);
     let bvec = case
         .background
@@ -582,12 +582,12 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
             .iter()
             .map(|o| {
                 let mat = match o {
-                    Owner::Part(i) => Some(&case.parts[*i].material),
-                    Owner::Conductor(i) => Some(&case.conductors[*i].material),
+                    Owner::Part(i) => Some(case.material(case.parts[*i].material)),
+                    Owner::Conductor(i) => Some(case.material(case.conductors[*i].material)),
                     _ => None,
                 }?;
-                let pts = case.materials.get(mat)?.bh.as_ref()?;
-                Some(BhCurve::new(pts).map_err(|e| (mat.clone(), e)))
+                let pts = mat.bh.as_ref()?;
+                Some(BhCurve::new(pts).map_err(|e| (mat.name.clone(), e)))
             })
             .map(|c| c.transpose())
             .collect::<Result<_, _>>()
@@ -862,7 +862,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
     for (i, p) in case.parts.iter().enumerate() {
         let regions = model.regions_of(|o| *o == Owner::Part(i));
         let s = flux_stats(&regions);
-        let b_sat = case.materials.get(&p.material).and_then(|m| m.b_sat);
+        let b_sat = case.material(p.material).b_sat;
         let mu_app = match (&case.background, &background) {
             (Some(b), Some(bg)) if b.b != 0.0 => {
                 // with saturation the Newton field at the case's own field (superposition
@@ -876,7 +876,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
             if s.b_peak > bs {
                 warnings.push(format!(
                     "part `{}`: peak |B| {} exceeds the saturation flux density {} of `{}`; the linear result does not hold there",
-                    p.name, crate::output::eng(s.b_peak, "T"), crate::output::eng(bs, "T"), p.material
+                    p.name, crate::output::eng(s.b_peak, "T"), crate::output::eng(bs, "T"), case.material(p.material).name
                 ));
             } else if s.b_peak > 0.8 * bs {
                 warnings.push(format!(
@@ -889,7 +889,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
             p.name.clone(),
             PartFigures {
                 apparent_permeability: mu_app,
-                material: p.material.clone(),
+                material: case.material(p.material).name.clone(),
                 b_mean_t: s.b_mean,
                 b_mean_t_err: mean_err(&regions),
                 b_peak_t: s.b_peak,
@@ -908,10 +908,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
     for (i, c) in case.conductors.iter().enumerate() {
         let regions = model.regions_of(|o| *o == Owner::Conductor(i));
         let s = flux_stats(&regions);
-        let sigma = case
-            .materials
-            .get(&c.material)
-            .map_or(0.0, |m| m.conductivity);
+        let sigma = case.material(c.material).conductivity;
         let w = ncoils + i;
         // DC resistance: planar depth/(σS); axisymmetric (a ring) 2π/(σ∫dS/r) when solid,
         // ∫ j²/σ dV with the uniform density when stranded.
@@ -1034,7 +1031,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
         let (emf_m, emf_p) = (emf.norm(), emf.arg().to_degrees());
         let r_total = r + r_eddy;
         let tuned = ac && l > 0.0 && r_total > 0.0;
-        let circuit = case.circuit.as_ref().filter(|k| k.coil == c.name);
+        let circuit = case.circuit.as_ref().filter(|k| k.coil.index() == i);
         let tuning = circuit.map_or(circuit::Tuning::Series, |k| match k.tuning {
             crate::case::Tuning::Series => circuit::Tuning::Series,
             crate::case::Tuning::Parallel => circuit::Tuning::Parallel,
@@ -1090,16 +1087,13 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
             .iter()
             .enumerate()
             .filter(|(_, p)| {
-                case.materials
-                    .get(&p.material)
-                    .is_some_and(|m| m.mu_r > 1.0)
-                    && {
-                        let x = centroid(&p.shape);
-                        x[0] >= span[0][0]
-                            && x[0] <= span[1][0]
-                            && x[1] >= span[0][1]
-                            && x[1] <= span[1][1]
-                    }
+                case.material(p.material).mu_r > 1.0 && {
+                    let x = centroid(&p.shape);
+                    x[0] >= span[0][0]
+                        && x[0] <= span[1][0]
+                        && x[1] >= span[0][1]
+                        && x[1] <= span[1][1]
+                }
             })
             .map(|(k, _)| k)
             .collect();
@@ -1111,10 +1105,7 @@ pub fn run_on(case: &Case, map: Option<&SizeMap>) -> Result<Run, StudyError> {
             for &k in &core {
                 let (_, v) = measure(&model.regions_of(|o| *o == Owner::Part(k)));
                 vol += v;
-                let rho = case
-                    .materials
-                    .get(&case.parts[k].material)
-                    .and_then(|m| m.density);
+                let rho = case.material(case.parts[k].material).density;
                 mass = match (mass, rho) {
                     (Some(m), Some(rho)) => Some(m + rho * v),
                     _ => None,

@@ -65,6 +65,34 @@ pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
     out
 }
 
+/// One coil's line of [`summary`]: turns, wire, fill, temperature, drive and window.
+fn coil_line(c: &Coil, u: f64, unit: &str) -> String {
+    let wire = match c.wire.awg {
+        Some(n) => format!("AWG {n} ({} mm bare)", fmt_g(c.wire.diameter * 1e3)),
+        None => format!("{} mm bare", fmt_g(c.wire.diameter * 1e3)),
+    };
+    let drive = if c.current == 0.0 {
+        "open circuit".to_string()
+    } else {
+        format!(
+            "driven {} A rms at {}°",
+            fmt_g(c.current),
+            fmt_g(c.phase_deg)
+        )
+    };
+    let window = match &c.window {
+        CoilWindow::Single(sh) => shape_text(sh, u, unit),
+        CoilWindow::Sides(v) => format!("{} sides", v.len()),
+    };
+    format!(
+        "  {}: {} turns of {wire}, fill {}, {} °C, {drive}, {window}",
+        c.name,
+        fmt_g(c.turns),
+        fmt_g(c.fill_factor),
+        fmt_g(c.temperature_c)
+    )
+}
+
 fn shape_text(s: &Shape, u: f64, unit: &str) -> String {
     let p = |q: [f64; 2]| format!("[{}, {}]", fmt_g(q[0] / u), fmt_g(q[1] / u));
     let l = |x: f64| fmt_g(x / u);
@@ -131,7 +159,10 @@ pub fn summary(case: &Case) -> String {
     let _ = writeln!(
         s,
         "model: {sym}; {freq}; element order {}; lengths in {unit}",
-        case.element_order
+        match case.element_order {
+            Order::Linear => 1,
+            Order::Quadratic => 2,
+        }
     );
     if !case.parameters.is_empty() {
         let list: Vec<String> = case
@@ -164,14 +195,14 @@ pub fn summary(case: &Case) -> String {
             fmt_g(b.phase_deg)
         );
     }
-    let mat = |name: &str| {
-        case.materials.get(name).map_or_else(String::new, |m| {
-            format!(
-                "{name} (μr {}, σ {} S/m)",
-                fmt_g(m.mu_r),
-                fmt_g(m.conductivity)
-            )
-        })
+    let mat = |id: MaterialId| {
+        let m = case.material(id);
+        format!(
+            "{} (μr {}, σ {} S/m)",
+            m.name,
+            fmt_g(m.mu_r),
+            fmt_g(m.conductivity)
+        )
     };
     let _ = writeln!(s, "parts: {}", case.parts.len());
     for p in &case.parts {
@@ -179,7 +210,7 @@ pub fn summary(case: &Case) -> String {
             s,
             "  {}: {}, {}",
             p.name,
-            mat(&p.material),
+            mat(p.material),
             shape_text(&p.shape, u, unit)
         );
     }
@@ -195,37 +226,13 @@ pub fn summary(case: &Case) -> String {
                 crate::case::ConductorKind::Solid => "solid",
                 crate::case::ConductorKind::Stranded => "stranded",
             },
-            mat(&c.material),
+            mat(c.material),
             shape_text(&c.shape, u, unit)
         );
     }
     let _ = writeln!(s, "coils: {}", case.coils.len());
     for c in &case.coils {
-        let wire = match c.wire.awg {
-            Some(n) => format!("AWG {n} ({} mm bare)", fmt_g(c.wire.diameter * 1e3)),
-            None => format!("{} mm bare", fmt_g(c.wire.diameter * 1e3)),
-        };
-        let drive = if c.current == 0.0 {
-            "open circuit".to_string()
-        } else {
-            format!(
-                "driven {} A rms at {}°",
-                fmt_g(c.current),
-                fmt_g(c.phase_deg)
-            )
-        };
-        let window = match &c.window {
-            CoilWindow::Single(sh) => shape_text(sh, u, unit),
-            CoilWindow::Sides(v) => format!("{} sides", v.len()),
-        };
-        let _ = writeln!(
-            s,
-            "  {}: {} turns of {wire}, fill {}, {} °C, {drive}, {window}",
-            c.name,
-            fmt_g(c.turns),
-            fmt_g(c.fill_factor),
-            fmt_g(c.temperature_c)
-        );
+        let _ = writeln!(s, "{}", coil_line(c, u, unit));
     }
     if let Some(c) = &case.circuit {
         let load = match c.load {
@@ -235,7 +242,7 @@ pub fn summary(case: &Case) -> String {
         let _ = writeln!(
             s,
             "circuit: coil {}, tuning {}, {load}",
-            c.coil,
+            case.coil(c.coil).name,
             match c.tuning {
                 crate::case::Tuning::Series => "series",
                 crate::case::Tuning::Parallel => "parallel",

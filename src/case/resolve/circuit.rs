@@ -4,7 +4,7 @@ use toml::Spanned;
 
 use super::{sp, Ctx, Result};
 use crate::case::error::{nearest, CaseErrorKind as K};
-use crate::case::model::{Circuit, Coil, Load, Storage, Tuning};
+use crate::case::model::{Circuit, Coil, CoilId, Load, Storage, Tuning};
 use crate::case::raw::{Num, RawCircuit, RawTuning};
 
 pub(super) fn resolve_circuit(
@@ -15,7 +15,7 @@ pub(super) fn resolve_circuit(
     let v = c.get_ref();
     let coil = match &v.coil {
         Some(n) => {
-            if !coils.iter().any(|k| &k.name == n.get_ref()) {
+            let Some(k) = coils.iter().position(|k| &k.name == n.get_ref()) else {
                 let help = match nearest(n.get_ref(), coils.iter().map(|k| k.name.as_str())) {
                     Some(s) => format!("did you mean \"{s}\"?"),
                     None => "name one of the [[coil]] entries".into(),
@@ -27,11 +27,13 @@ pub(super) fn resolve_circuit(
                     format!("no coil is named \"{}\"", n.get_ref()),
                     help,
                 ));
-            }
-            n.get_ref().clone()
+            };
+            CoilId::new(k)
         }
         None => {
-            let open: Vec<&Coil> = coils.iter().filter(|k| k.current == 0.0).collect();
+            let open: Vec<usize> = (0..coils.len())
+                .filter(|&k| coils[k].current == 0.0)
+                .collect();
             match (coils.len(), open.len()) {
                 (0, _) => {
                     return Err(cx.err(
@@ -42,8 +44,8 @@ pub(super) fn resolve_circuit(
                         "add a coil, or remove [circuit]",
                     ))
                 }
-                (1, _) => coils[0].name.clone(),
-                (_, 1) => open[0].name.clone(),
+                (1, _) => CoilId::new(0),
+                (_, 1) => CoilId::new(open[0]),
                 _ => {
                     return Err(cx.err(
                         K::MissingKey,

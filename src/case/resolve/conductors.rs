@@ -1,8 +1,6 @@
 //! `[[conductor]]`: regions with an imposed total current.
 
-use std::collections::BTreeMap;
-
-use super::materials::material_ref;
+use super::materials::{builtin_id, material_ref};
 use super::names::Names;
 use super::shapes::Carrier;
 use super::{Ctx, Result};
@@ -12,7 +10,7 @@ use crate::case::raw::{RawCase, RawConductorKind};
 pub(super) fn resolve_conductors(
     cx: &Ctx<'_>,
     raw: &RawCase,
-    materials: &BTreeMap<String, Material>,
+    materials: &[Material],
     names: &mut Names,
     domain: &Domain,
     carriers: &mut Vec<Carrier>,
@@ -23,7 +21,7 @@ pub(super) fn resolve_conductors(
         let v = c.get_ref();
         let name = names.check(cx, &v.name, &format!("{path}.name"))?;
         let material = match &v.material {
-            None => COPPER.to_string(),
+            None => builtin_id(materials, COPPER),
             Some(m) => material_ref(cx, materials, m, &format!("{path}.material"))?,
         };
         let (shape, span) = cx.shape(v.shape_keys(), &path, c.span(), "the conductor")?;

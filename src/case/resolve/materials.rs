@@ -8,19 +8,27 @@ use toml::Spanned;
 
 use super::{sp, Ctx, Result};
 use crate::case::error::{nearest, CaseErrorKind as K};
-use crate::case::model::{builtin_materials, Material};
+use crate::case::model::{builtin_materials, Material, MaterialId};
 use crate::case::raw::{Pt, RawMaterial};
 
-/// Every material: the built-ins, replaced or joined by the file's tables.
+/// Every material, in name order (a [`MaterialId`] is the position): the built-ins,
+/// replaced or joined by the file's tables.
 pub(super) fn resolve_materials(
     cx: &Ctx<'_>,
     raw: &BTreeMap<String, Spanned<RawMaterial>>,
-) -> Result<BTreeMap<String, Material>> {
+) -> Result<Vec<Material>> {
     let mut materials = builtin_materials();
     for (name, mat) in raw {
         materials.insert(name.clone(), resolve_material(cx, name, mat)?);
     }
-    Ok(materials)
+    Ok(materials.into_values().collect())
+}
+
+/// The id of a built-in material (always present: a file's table of the same name
+/// replaces its values, not its name).
+pub(super) fn builtin_id(materials: &[Material], name: &str) -> MaterialId {
+    let i = materials.iter().position(|m| m.name == name);
+    MaterialId::new(i.expect("the built-in materials are always defined"))
 }
 
 fn resolve_material(cx: &Ctx<'_>, name: &str, mat: &Spanned<RawMaterial>) -> Result<Material> {
@@ -136,16 +144,16 @@ fn builtin_curve(cx: &Ctx<'_>, named: &Spanned<String>, k: &str) -> Result<Vec<[
 /// A part's or a conductor's material, which must be defined.
 pub(super) fn material_ref(
     cx: &Ctx<'_>,
-    materials: &BTreeMap<String, Material>,
+    materials: &[Material],
     m: &Spanned<String>,
     key: &str,
-) -> Result<String> {
-    let material_names: Vec<String> = materials.keys().cloned().collect();
+) -> Result<MaterialId> {
     let name = m.get_ref();
-    if materials.contains_key(name) {
-        return Ok(name.clone());
+    if let Some(i) = materials.iter().position(|k| &k.name == name) {
+        return Ok(MaterialId::new(i));
     }
-    let help = match nearest(name, material_names.iter().map(String::as_str)) {
+    let material_names: Vec<&str> = materials.iter().map(|k| k.name.as_str()).collect();
+    let help = match nearest(name, material_names.iter().copied()) {
         Some(s) => format!("did you mean \"{s}\"? Or define [materials.{name}]"),
         None => format!(
             "define [materials.{name}] or use one of: {}",

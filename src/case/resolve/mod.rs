@@ -149,6 +149,7 @@ pub(super) fn resolve(
         parameters: cx.params.clone(),
         domain,
         background,
+        air: materials::builtin_id(&materials, AIR),
         materials,
         parts,
         conductors,

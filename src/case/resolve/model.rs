@@ -6,7 +6,7 @@ use super::{fmt_g, sp, Ctx, Result};
 use crate::case::error::CaseErrorKind as K;
 use fluxpick_mesh::BBox;
 
-use crate::case::model::Domain;
+use crate::case::model::{Domain, Order};
 use crate::case::raw::{RawModel, RawRefinement};
 
 /// Default planar depth: 1 m (CASE-FORMAT.md).
@@ -23,7 +23,7 @@ pub(super) struct ModelSettings {
     pub title: String,
     pub frequency: f64,
     pub depth: f64,
-    pub element_order: u8,
+    pub element_order: Order,
     pub accuracy: Option<f64>,
     pub max_triangles: usize,
     pub uniform_refinement: bool,
@@ -51,11 +51,13 @@ pub(super) fn resolve_model(cx: &Ctx<'_>, m: &RawModel) -> Result<ModelSettings>
         Some(d) => cx.pos_len(d, "model.depth", "the depth")?,
     };
     let element_order = match &m.element_order {
-        None => 2,
+        None => Order::Quadratic,
         Some(o) => {
             let v = cx.num(o, "model.element_order")?;
-            if v == 1.0 || v == 2.0 {
-                v as u8
+            if v == 1.0 {
+                Order::Linear
+            } else if v == 2.0 {
+                Order::Quadratic
             } else {
                 return Err(cx.err(
                     K::OutOfRange,

@@ -1,7 +1,5 @@
 //! `[[part]]`: passive regions (cores, steel, shields, spacers).
 
-use std::collections::BTreeMap;
-
 use super::materials::material_ref;
 use super::names::Names;
 use super::{Ctx, Result};
@@ -11,7 +9,7 @@ use crate::case::raw::RawCase;
 pub(super) fn resolve_parts(
     cx: &Ctx<'_>,
     raw: &RawCase,
-    materials: &BTreeMap<String, Material>,
+    materials: &[Material],
     names: &mut Names,
     domain: &Domain,
 ) -> Result<Vec<Part>> {
