@@ -340,7 +340,7 @@ fn eddy_bench() {
         mesh: &mesh,
         formulation: model.formulation,
         order: model.order,
-        materials: model.materials(&case).unwrap(),
+        materials: model.materials(&case),
         windings: model.windings(&case),
         background: None,
         dirichlet: model.dirichlet.clone(),

@@ -9,7 +9,7 @@
 use fluxpick_mesh::{Cuts, MeshParams, MeshSpec, Outer, RegionInput, Shape, Side};
 use fluxpick_solver::{Formulation, Order, RegionMaterial, Spread, Winding, WindingRegion};
 
-use crate::case::{BoundaryKind, Case, ConductorKind, DomainSide, EdgeKind, Symmetry};
+use crate::case::{BoundaryKind, Case, ConductorKind, DomainSide, EdgeKind, MaterialId, Symmetry};
 
 /// Radius of the open-boundary disk relative to the farthest domain corner from its centre.
 pub const OPEN_DISK_MARGIN: f64 = 1.1;
@@ -35,8 +35,6 @@ pub enum BuildError {
     AxisymmetricDomainOffAxis(f64),
     #[error("the domain must be a rect or a circle")]
     DomainShape,
-    #[error("material `{0}` is not defined")]
-    UnknownMaterial(String),
 }
 
 /// The case turned into the library crates' inputs.
@@ -64,19 +62,19 @@ pub use fluxpick_postproc::design::skin_depth;
 
 /// Does the case need the time-harmonic solve (eddy currents somewhere)?
 pub fn has_eddy_currents(case: &Case) -> bool {
-    let sigma = |m: &str| case.materials.get(m).map_or(0.0, |m| m.conductivity);
+    let sigma = |m: MaterialId| case.material(m).conductivity;
     case.frequency > 0.0
-        && (case.parts.iter().any(|p| sigma(&p.material) > 0.0)
+        && (case.parts.iter().any(|p| sigma(p.material) > 0.0)
             || case
                 .conductors
                 .iter()
-                .any(|c| c.kind == ConductorKind::Solid && sigma(&c.material) > 0.0))
+                .any(|c| c.kind == ConductorKind::Solid && sigma(c.material) > 0.0))
 }
 
 /// Default surface element size as a fraction of the skin depth, by element order
 /// (second order: a third, checked against the exact round-wire and plate solutions in
 /// the solver's tests; first order: a sixth).
-fn skin_fraction(order: Order) -> f64 {
+pub(crate) fn skin_fraction(order: Order) -> f64 {
     match order {
         Order::Quadratic => 1.0 / 3.0,
         Order::Linear => 1.0 / 6.0,
@@ -92,22 +90,8 @@ fn side_of(s: DomainSide) -> Side {
     }
 }
 
-fn extent(shape: &Shape) -> f64 {
-    match shape {
-        Shape::Rect { min, max } => (max[0] - min[0]).min(max[1] - min[1]),
-        Shape::Circle { radius, .. } => 2.0 * radius,
-        Shape::Ellipse { semi_axes, .. } => 2.0 * semi_axes[0].min(semi_axes[1]),
-        Shape::Annulus { inner, outer, .. } => outer - inner,
-        Shape::Polygon(p) => {
-            let lo = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min));
-            let hi = [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max));
-            (hi[0] - lo[0]).min(hi[1] - lo[1])
-        }
-    }
-}
-
 fn region(shape: &Shape, size: Option<f64>, background: f64) -> RegionInput {
-    let default = (extent(shape) * DEFAULT_REGION_SIZE_FRACTION).min(background);
+    let default = (shape.smallest_extent() * DEFAULT_REGION_SIZE_FRACTION).min(background);
     RegionInput {
         shape: shape.clone(),
         max_edge: Some(size.unwrap_or(default).min(background)),
@@ -121,42 +105,37 @@ impl Model {
         let h = case.domain.mesh_size;
         let mut regions = Vec::new();
         let mut owners = vec![Owner::Air];
-        let order = if case.element_order == 1 {
-            Order::Linear
-        } else {
-            Order::Quadratic
-        };
+        let order = case.element_order;
         let mut skin = Vec::new();
         // A skin layer on every region that carries eddy currents at f > 0.
-        let mut layer = |r: &mut RegionInput, name: &str, material: &str, own: Option<f64>| {
-            let Some(m) = case.materials.get(material) else {
-                return;
+        let mut layer =
+            |r: &mut RegionInput, name: &str, material: MaterialId, own: Option<f64>| {
+                let m = case.material(material);
+                if case.frequency <= 0.0 || m.conductivity <= 0.0 {
+                    return;
+                }
+                let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
+                let size = own.unwrap_or(depth * skin_fraction(order));
+                let inside = r.max_edge.unwrap_or(h);
+                if size < inside {
+                    r.skin_edge = Some(size);
+                }
+                skin.push(SkinLayer {
+                    name: name.to_string(),
+                    depth_m: depth,
+                    surface_size_m: size.min(inside),
+                });
             };
-            if case.frequency <= 0.0 || m.conductivity <= 0.0 {
-                return;
-            }
-            let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
-            let size = own.unwrap_or(depth * skin_fraction(order));
-            let inside = r.max_edge.unwrap_or(h);
-            if size < inside {
-                r.skin_edge = Some(size);
-            }
-            skin.push(SkinLayer {
-                name: name.to_string(),
-                depth_m: depth,
-                surface_size_m: size.min(inside),
-            });
-        };
         for (i, p) in case.parts.iter().enumerate() {
             let mut r = region(&p.shape, p.mesh_size, h);
-            layer(&mut r, &p.name, &p.material, p.skin_mesh_size);
+            layer(&mut r, &p.name, p.material, p.skin_mesh_size);
             regions.push(r);
             owners.push(Owner::Part(i));
         }
         for (i, c) in case.conductors.iter().enumerate() {
             let mut r = region(&c.shape, c.mesh_size, h);
             if c.kind == ConductorKind::Solid {
-                layer(&mut r, &c.name, &c.material, c.skin_mesh_size);
+                layer(&mut r, &c.name, c.material, c.skin_mesh_size);
             }
             regions.push(r);
             owners.push(Owner::Conductor(i));
@@ -287,19 +266,17 @@ impl Model {
     }
 
     /// Material of every region id (air for coil windows and the exterior).
-    pub fn materials(&self, case: &Case) -> Result<Vec<RegionMaterial>, BuildError> {
-        let get = |name: &str| {
-            case.materials
-                .get(name)
-                .map(|m| RegionMaterial::from_mu_r(m.mu_r, m.conductivity))
-                .ok_or_else(|| BuildError::UnknownMaterial(name.to_string()))
+    pub fn materials(&self, case: &Case) -> Vec<RegionMaterial> {
+        let get = |id: MaterialId| {
+            let m = case.material(id);
+            RegionMaterial::from_mu_r(m.mu_r, m.conductivity)
         };
         self.owners
             .iter()
             .map(|o| match o {
-                Owner::Part(i) => get(&case.parts[*i].material),
-                Owner::Conductor(i) => get(&case.conductors[*i].material),
-                _ => Ok(RegionMaterial::from_mu_r(1.0, 0.0)),
+                Owner::Part(i) => get(case.parts[*i].material),
+                Owner::Conductor(i) => get(case.conductors[*i].material),
+                _ => RegionMaterial::from_mu_r(1.0, 0.0),
             })
             .collect()
     }

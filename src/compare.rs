@@ -25,7 +25,7 @@ pub struct Row {
 /// else the first.
 fn chosen_coil(case: &crate::case::Case) -> Option<String> {
     if let Some(c) = &case.circuit {
-        return Some(c.coil.clone());
+        return Some(case.coil(c.coil).name.clone());
     }
     case.coils
         .iter()

@@ -20,7 +20,7 @@ pub mod output;
 pub mod picture;
 pub mod pipeline;
 pub mod sanity;
-pub mod schema;
+pub use case::schema;
 pub mod settings;
 pub mod starters;
 pub mod sweep;

@@ -10,7 +10,7 @@
 //! The limits are a value ([`Limits`]) that the command line resolves once and passes down
 //! in the run's settings (`Settings`).
 
-use crate::case::{element_shares, Case, Share};
+use crate::case::{element_shares, Case, Order, Share};
 
 /// Share of the available memory a run may plan to use (the rest for the system and for
 /// the estimate's error).
@@ -102,10 +102,10 @@ pub fn estimate(case: &Case) -> Estimate {
     let triangles = crate::case::estimated_elements(case);
     let eddy = crate::build::has_eddy_currents(case);
     let per = match (eddy, case.element_order) {
-        (false, 1) => BYTES_PER_TRIANGLE_STATIC_P1,
-        (false, _) => BYTES_PER_TRIANGLE_STATIC_P2,
-        (true, 1) => BYTES_PER_TRIANGLE_EDDY_P1,
-        (true, _) => BYTES_PER_TRIANGLE_EDDY_P2,
+        (false, Order::Linear) => BYTES_PER_TRIANGLE_STATIC_P1,
+        (false, Order::Quadratic) => BYTES_PER_TRIANGLE_STATIC_P2,
+        (true, Order::Linear) => BYTES_PER_TRIANGLE_EDDY_P1,
+        (true, Order::Quadratic) => BYTES_PER_TRIANGLE_EDDY_P2,
     };
     Estimate {
         triangles,

@@ -9,8 +9,8 @@
 
 use serde::Serialize;
 
-use crate::case::geom;
-use crate::case::{BoundaryKind, Case, DomainSide, Shape, Symmetry};
+use crate::case::{BoundaryKind, Case, DomainSide, MaterialId, Shape, Symmetry};
+use fluxpick_mesh::BBox;
 
 /// A part counts as a magnetic core (for the "far from any source" check) from this relative
 /// permeability up, or when it has a B-H curve.
@@ -86,17 +86,13 @@ struct Region<'a> {
 
 /// The edge the mesher uses at the surface of a conductive region at f > 0 (the skin layer of
 /// `crate::build`): `own`, or a third of the skin depth (a sixth at element order 1).
-fn skin_size(case: &Case, material: &str, own: Option<f64>) -> Option<f64> {
-    let m = case.materials.get(material)?;
+fn skin_size(case: &Case, material: MaterialId, own: Option<f64>) -> Option<f64> {
+    let m = case.material(material);
     if case.frequency <= 0.0 || m.conductivity <= 0.0 {
         return None;
     }
     let depth = crate::build::skin_depth(case.frequency, m.mu_r, m.conductivity);
-    let fraction = if case.element_order == 1 {
-        1.0 / 6.0
-    } else {
-        1.0 / 3.0
-    };
+    let fraction = crate::build::skin_fraction(case.element_order);
     Some(own.unwrap_or(depth * fraction))
 }
 
@@ -108,7 +104,7 @@ fn regions(case: &Case) -> Vec<Region<'_>> {
             name: &p.name,
             shape: &p.shape,
             mesh_size: p.mesh_size,
-            skin_size: skin_size(case, &p.material, p.skin_mesh_size),
+            skin_size: skin_size(case, p.material, p.skin_mesh_size),
         });
     }
     for (i, c) in case.conductors.iter().enumerate() {
@@ -117,7 +113,7 @@ fn regions(case: &Case) -> Vec<Region<'_>> {
             name: &c.name,
             shape: &c.shape,
             mesh_size: c.mesh_size,
-            skin_size: skin_size(case, &c.material, c.skin_mesh_size),
+            skin_size: skin_size(case, c.material, c.skin_mesh_size),
         });
     }
     for (i, c) in case.coils.iter().enumerate() {
@@ -143,14 +139,14 @@ fn regions(case: &Case) -> Vec<Region<'_>> {
 /// Size of a shape: the larger side of its bounding box (clipped at the axis when
 /// axisymmetric, where a core on the axis is [0, D/2] wide).
 fn size(shape: &Shape) -> f64 {
-    let (lo, hi) = geom::bbox(shape);
+    let BBox { min: lo, max: hi } = shape.bbox();
     (hi[0] - lo[0]).max(hi[1] - lo[1])
 }
 
 /// Gap between two bounding boxes (0 when they touch or overlap).
 fn gap(a: &Shape, b: &Shape) -> f64 {
-    let (alo, ahi) = geom::bbox(a);
-    let (blo, bhi) = geom::bbox(b);
+    let BBox { min: alo, max: ahi } = a.bbox();
+    let BBox { min: blo, max: bhi } = b.bbox();
     let dx = (blo[0] - ahi[0]).max(alo[0] - bhi[0]).max(0.0);
     let dy = (blo[1] - ahi[1]).max(alo[1] - bhi[1]).max(0.0);
     dx.hypot(dy)
@@ -162,9 +158,9 @@ fn open_boundary_gap(case: &Case, shape: &Shape) -> Option<f64> {
         return None;
     }
     match &case.domain.shape {
-        Shape::Circle { center, radius } => Some(radius - geom::max_distance_from(shape, *center)),
+        Shape::Circle { center, radius } => Some(radius - shape.max_distance_from(*center)),
         Shape::Rect { min, max } => {
-            let (lo, hi) = geom::bbox(shape);
+            let BBox { min: lo, max: hi } = shape.bbox();
             let axi = case.symmetry == Symmetry::Axisymmetric;
             let has_edge = |s: DomainSide| case.domain.edges.iter().any(|(d, _)| *d == s);
             let mut best: Option<f64> = None;
@@ -193,7 +189,7 @@ pub fn lint(case: &Case) -> Vec<Warning> {
         let h = r.mesh_size.unwrap_or(case.domain.mesh_size);
         let own = r.mesh_size.is_some() || r.skin_size.is_some_and(|s| s < h);
         let h = r.skin_size.map_or(h, |s| h.min(s));
-        let width = geom::smallest_extent(r.shape);
+        let width = r.shape.smallest_extent();
         if h > width {
             out.push(Warning {
                 key: r.key.clone(),
@@ -229,10 +225,8 @@ pub fn lint(case: &Case) -> Vec<Warning> {
             }
         }
         for (i, p) in case.parts.iter().enumerate() {
-            let magnetic = case
-                .materials
-                .get(&p.material)
-                .is_some_and(|m| m.mu_r >= CORE_MU_R || m.bh.is_some());
+            let m = case.material(p.material);
+            let magnetic = m.mu_r >= CORE_MU_R || m.bh.is_some();
             if !magnetic || sources.is_empty() {
                 continue;
             }

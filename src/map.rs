@@ -81,7 +81,7 @@ fn pickup_figures(
     let coil = case
         .circuit
         .as_ref()
-        .map(|c| c.coil.clone())
+        .map(|c| case.coil(c.coil).name.clone())
         .or_else(|| case.coils.first().map(|c| c.name.clone()))
         .ok_or_else(|| {
             fail(format!(

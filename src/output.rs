@@ -10,25 +10,20 @@ use fluxpick_postproc::vtk::{DataArray, Grid, VTK_QUADRATIC_TRIANGLE, VTK_TRIANG
 use fluxpick_solver::{Order, MU0};
 
 use crate::build::{Model, Owner};
-use crate::case::Case;
+use crate::case::{Case, MaterialId};
 use crate::format::{duration, eng, pm};
 use crate::pipeline::{Results, Run};
 
 fn material_index(case: &Case, model: &Model) -> Vec<f64> {
-    let names: Vec<&String> = case.materials.keys().collect();
-    let idx = |m: &str| {
-        names
-            .iter()
-            .position(|n| n.as_str() == m)
-            .map_or(-1.0, |i| i as f64)
-    };
+    let idx = |m: MaterialId| m.index() as f64;
+    let air = idx(case.air);
     model
         .owners
         .iter()
         .map(|o| match *o {
-            Owner::Part(i) => idx(&case.parts[i].material),
-            Owner::Conductor(i) => idx(&case.conductors[i].material),
-            _ => idx("air"),
+            Owner::Part(i) => idx(case.parts[i].material),
+            Owner::Conductor(i) => idx(case.conductors[i].material),
+            _ => air,
         })
         .collect()
 }
@@ -132,7 +127,7 @@ pub fn write_field_vtu(path: &Path, case: &Case, run: &Run) -> std::io::Result<(
     } else {
         cell_data.push(DataArray::scalar("J", j.iter().map(|z| z.re).collect()));
     }
-    let materials = run.model.materials(case).unwrap_or_default();
+    let materials = run.model.materials(case);
     cell_data.push(DataArray::scalar(
         "mu_r",
         cells

@@ -1,6 +1,6 @@
 //! The case-file reference cannot drift from the parser.
 //!
-//! 1. `docs/case-reference.md` must equal what `src/schema.rs` generates (regenerate with
+//! 1. `docs/case-reference.md` must equal what `src/case/schema.rs` generates (regenerate with
 //!    `FLUXPICK_BLESS=1 cargo test --release --test case_reference`).
 //! 2. Every key the parser accepts must have a schema entry, and every schema entry must be a
 //!    key the parser accepts, with the same kind of value and the same choices. The keys are
@@ -353,7 +353,7 @@ fn every_accepted_key_has_a_schema_entry() {
     }
     assert!(
         missing.is_empty(),
-        "the parser accepts these keys but src/schema.rs has no entry for them: {}\n\
+        "the parser accepts these keys but src/case/schema.rs has no entry for them: {}\n\
          add an entry to schema::KEYS (or SHAPE_KEYS), then regenerate the reference with \
          FLUXPICK_BLESS=1 cargo test --release --test case_reference",
         missing.join(", ")
@@ -381,7 +381,7 @@ fn every_schema_entry_is_an_accepted_key() {
     }
     assert!(
         stale.is_empty(),
-        "src/schema.rs documents keys the parser does not accept: {stale:?}"
+        "src/case/schema.rs documents keys the parser does not accept: {stale:?}"
     );
 }
 
@@ -401,7 +401,7 @@ fn reference_doc_matches_schema() {
             .position(|(a, b)| a != b)
             .unwrap_or(have.lines().count().min(want.lines().count()));
         panic!(
-            "docs/case-reference.md differs from src/schema.rs (first at line {}):\n  doc:    {:?}\n  schema: {:?}\n\
+            "docs/case-reference.md differs from src/case/schema.rs (first at line {}):\n  doc:    {:?}\n  schema: {:?}\n\
              regenerate with FLUXPICK_BLESS=1 cargo test --release --test case_reference",
             first + 1,
             have.lines().nth(first),

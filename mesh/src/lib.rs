@@ -26,7 +26,8 @@
 //! assert_eq!(quad.points.len(), mesh.points.len() + mesh.edge_count());
 //! ```
 //!
-//! Modules: [`shape`] (polygonisation, clipping at the axis), `build` (loops → spade CDT →
+//! Modules: [`geom`] (a [`Shape`]'s bbox, area, centroid, extent, overlap; polygon checks),
+//! [`shape`] (polygonisation, clipping at the axis), `build` (loops → spade CDT →
 //! refinement with the [`size`] field), `tag` (region ids), `assemble` ([`generate`], image,
 //! renumbering), `quadratic` ([`Mesh::quadratic`]), [`stats`], `check`
 //! ([`Mesh::check_invariants`], [`expected_region_areas`]).
@@ -53,7 +54,10 @@ pub use assemble::{generate, generate_refined, renumber_hilbert};
 pub use build::{MAX_DOMAIN_ASPECT, MAX_SIZE_PASSES};
 pub use check::expected_region_areas;
 pub use error::{InvariantViolation, MeshError};
-pub use geom::{polygon_area, triangle_area, triangle_min_angle_deg};
+pub use geom::{
+    points_collinear, polygon_area, polygon_centroid, polygon_self_intersection, triangle_area,
+    triangle_min_angle_deg, BBox,
+};
 pub use shape::{region_geometries, RegionGeometry, MIN_CURVE_SEGMENTS, SPACING};
 pub use sizemap::SizeMap;
 pub use stats::{MeshStats, RegionStats};

@@ -8,7 +8,7 @@
 //! |x - c| = R at the glued nodes).
 
 use crate::error::MeshError;
-use crate::geom::{polygon_area, polygon_centroid, segments_touch, BBox};
+use crate::geom::{polygon_area, polygon_centroid, polygon_self_intersection, BBox};
 use crate::sizemap::SizeMap;
 use crate::{Cuts, MeshSpec, Outer, Point, Shape};
 use std::f64::consts::PI;
@@ -79,20 +79,6 @@ pub(crate) struct Domain {
     /// Counter-clockwise convex loop.
     pub boundary: Vec<Point>,
     pub bbox: BBox,
-}
-
-impl Shape {
-    /// Exact area of the analytic shape (not clipped, not polygonised): πr², πab,
-    /// π(r1² - r0²), w·h, or the shoelace area of the polygon.
-    pub fn exact_area(&self) -> f64 {
-        match self {
-            Shape::Rect { min, max } => (max[0] - min[0]) * (max[1] - min[1]),
-            Shape::Circle { radius, .. } => PI * radius * radius,
-            Shape::Ellipse { semi_axes, .. } => PI * semi_axes[0] * semi_axes[1],
-            Shape::Annulus { inner, outer, .. } => PI * (outer * outer - inner * inner),
-            Shape::Polygon(p) => polygon_area(p).abs(),
-        }
-    }
 }
 
 fn finite(p: Point) -> bool {
@@ -223,37 +209,12 @@ fn validate_polygon(region: usize, p: &[Point]) -> Result<(), MeshError> {
             });
         }
     }
-    // O(n²) with a bounding-box prefilter: polygons given by hand are small
-    let bbs: Vec<BBox> = (0..n).map(|i| BBox::of([&p[i], &p[(i + 1) % n]])).collect();
-    for i in 0..n {
-        for j in i + 1..n {
-            let adjacent = j == i + 1 || (i == 0 && j == n - 1);
-            if !bbs[i].overlaps(&bbs[j]) {
-                continue;
-            }
-            let (a, b) = (p[i], p[(i + 1) % n]);
-            let (c, d) = (p[j], p[(j + 1) % n]);
-            if adjacent {
-                // adjacent edges share one end; they must not fold back onto each other
-                let (shared, other_i, other_j) = if j == i + 1 { (b, a, d) } else { (a, b, c) };
-                let o = crate::geom::cross(shared, other_i, other_j);
-                let u = crate::geom::sub(other_i, shared);
-                let v = crate::geom::sub(other_j, shared);
-                if o == 0.0 && u[0] * v[0] + u[1] * v[1] > 0.0 {
-                    return Err(MeshError::SelfIntersecting {
-                        region,
-                        first: i,
-                        second: j,
-                    });
-                }
-            } else if segments_touch(a, b, c, d) {
-                return Err(MeshError::SelfIntersecting {
-                    region,
-                    first: i,
-                    second: j,
-                });
-            }
-        }
+    if let Some((first, second)) = polygon_self_intersection(p) {
+        return Err(MeshError::SelfIntersecting {
+            region,
+            first,
+            second,
+        });
     }
     Ok(())
 }

@@ -19,10 +19,10 @@
 
 pub mod error;
 pub mod expr;
-pub mod geom;
 pub mod model;
 pub mod raw;
 mod resolve;
+pub mod schema;
 mod summary;
 
 use std::collections::BTreeMap;

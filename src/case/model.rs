@@ -6,6 +6,40 @@
 use std::collections::BTreeMap;
 
 pub use fluxpick_mesh::Shape;
+/// The element order (`model.element_order` 1 or 2): the solver's own type, as the shapes
+/// are the mesher's.
+pub use fluxpick_solver::Order;
+
+/// A material of the case: the index into [`Case::materials`]. Handed out by the resolver
+/// only, so every id of a case names one of its materials ([`Case::material`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct MaterialId(usize);
+
+/// A coil of the case: the index into [`Case::coils`] ([`Case::coil`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct CoilId(usize);
+
+impl MaterialId {
+    pub(crate) fn new(index: usize) -> Self {
+        MaterialId(index)
+    }
+
+    /// The position in [`Case::materials`] (the materials in name order).
+    pub fn index(self) -> usize {
+        self.0
+    }
+}
+
+impl CoilId {
+    pub(crate) fn new(index: usize) -> Self {
+        CoilId(index)
+    }
+
+    /// The position in [`Case::coils`] (file order).
+    pub fn index(self) -> usize {
+        self.0
+    }
+}
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Symmetry {
@@ -79,7 +113,7 @@ pub struct Material {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Part {
     pub name: String,
-    pub material: String,
+    pub material: MaterialId,
     pub shape: Shape,
     /// Largest element edge inside (m); `None` = the domain's.
     pub mesh_size: Option<f64>,
@@ -99,7 +133,7 @@ pub enum ConductorKind {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Conductor {
     pub name: String,
-    pub material: String,
+    pub material: MaterialId,
     pub shape: Shape,
     /// A rms (DC value when frequency = 0).
     pub current: f64,
@@ -179,8 +213,8 @@ pub struct Storage {
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Circuit {
-    /// Name of the coil the circuit belongs to.
-    pub coil: String,
+    /// The coil the circuit belongs to.
+    pub coil: CoilId,
     pub tuning: Tuning,
     pub load: Load,
     pub storage: Option<Storage>,
@@ -225,8 +259,7 @@ pub struct Case {
     pub frequency: f64,
     /// Planar extent along the conductors, m (kept, but unused, in axisymmetric models).
     pub depth: f64,
-    /// 1 or 2.
-    pub element_order: u8,
+    pub element_order: Order,
     /// Relative accuracy target of the adaptive refinement (None: solve on one mesh).
     pub accuracy: Option<f64>,
     /// Element budget of the adaptive refinement (domain triangles).
@@ -239,14 +272,39 @@ pub struct Case {
     pub parameters: BTreeMap<String, f64>,
     pub domain: Domain,
     pub background: Option<Background>,
-    /// Every material, the built-ins included (a user table of the same name replaces one).
-    pub materials: BTreeMap<String, Material>,
+    /// Every material, the built-ins included (a user table of the same name replaces one),
+    /// in name order; [`MaterialId`]s index it.
+    pub materials: Vec<Material>,
+    /// The built-in [`AIR`]: what the regions that are no part or conductor are labelled
+    /// with (the air, coil windows, the exterior image).
+    pub air: MaterialId,
     pub parts: Vec<Part>,
     pub conductors: Vec<Conductor>,
     pub coils: Vec<Coil>,
     pub circuit: Option<Circuit>,
     pub probes: Vec<Probe>,
     pub sweeps: Vec<Sweep>,
+}
+
+impl Case {
+    /// The material an id of this case names.
+    pub fn material(&self, id: MaterialId) -> &Material {
+        &self.materials[id.0]
+    }
+
+    /// The coil an id of this case names.
+    pub fn coil(&self, id: CoilId) -> &Coil {
+        &self.coils[id.0]
+    }
+
+    /// The material of that name, if the case has one: for tests and tools that start
+    /// from a name; the stages after the resolver use the ids they are handed.
+    pub fn find_material(&self, name: &str) -> Option<MaterialId> {
+        self.materials
+            .iter()
+            .position(|m| m.name == name)
+            .map(MaterialId)
+    }
 }
 
 /// Default element budget of the adaptive refinement (domain triangles).

@@ -2,7 +2,6 @@
 
 use std::fmt::Write as _;
 
-use super::geom;
 use super::model::*;
 use super::resolve::fmt_g;
 
@@ -43,7 +42,7 @@ pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
     let mut regions_area = 0.0;
     let mut out = Vec::new();
     let mut add = |who: Share, shape: &Shape, h: Option<f64>| {
-        let a = geom::area(shape, clip);
+        let a = shape.area(clip);
         regions_area += a;
         out.push((who, triangles(a, h.unwrap_or(h_air).min(h_air))));
     };
@@ -58,12 +57,40 @@ pub(crate) fn element_shares(case: &Case) -> Vec<(Share, f64)> {
             add(Share::Coil(i), s, c.mesh_size);
         }
     }
-    let domain_area = geom::area(&case.domain.shape, clip);
+    let domain_area = case.domain.shape.area(clip);
     out.push((
         Share::Air,
         triangles((domain_area - regions_area).max(0.0), h_air),
     ));
     out
+}
+
+/// One coil's line of [`summary`]: turns, wire, fill, temperature, drive and window.
+fn coil_line(c: &Coil, u: f64, unit: &str) -> String {
+    let wire = match c.wire.awg {
+        Some(n) => format!("AWG {n} ({} mm bare)", fmt_g(c.wire.diameter * 1e3)),
+        None => format!("{} mm bare", fmt_g(c.wire.diameter * 1e3)),
+    };
+    let drive = if c.current == 0.0 {
+        "open circuit".to_string()
+    } else {
+        format!(
+            "driven {} A rms at {}°",
+            fmt_g(c.current),
+            fmt_g(c.phase_deg)
+        )
+    };
+    let window = match &c.window {
+        CoilWindow::Single(sh) => shape_text(sh, u, unit),
+        CoilWindow::Sides(v) => format!("{} sides", v.len()),
+    };
+    format!(
+        "  {}: {} turns of {wire}, fill {}, {} °C, {drive}, {window}",
+        c.name,
+        fmt_g(c.turns),
+        fmt_g(c.fill_factor),
+        fmt_g(c.temperature_c)
+    )
 }
 
 fn shape_text(s: &Shape, u: f64, unit: &str) -> String {
@@ -132,7 +159,10 @@ pub fn summary(case: &Case) -> String {
     let _ = writeln!(
         s,
         "model: {sym}; {freq}; element order {}; lengths in {unit}",
-        case.element_order
+        match case.element_order {
+            Order::Linear => 1,
+            Order::Quadratic => 2,
+        }
     );
     if !case.parameters.is_empty() {
         let list: Vec<String> = case
@@ -165,14 +195,14 @@ pub fn summary(case: &Case) -> String {
             fmt_g(b.phase_deg)
         );
     }
-    let mat = |name: &str| {
-        case.materials.get(name).map_or_else(String::new, |m| {
-            format!(
-                "{name} (μr {}, σ {} S/m)",
-                fmt_g(m.mu_r),
-                fmt_g(m.conductivity)
-            )
-        })
+    let mat = |id: MaterialId| {
+        let m = case.material(id);
+        format!(
+            "{} (μr {}, σ {} S/m)",
+            m.name,
+            fmt_g(m.mu_r),
+            fmt_g(m.conductivity)
+        )
     };
     let _ = writeln!(s, "parts: {}", case.parts.len());
     for p in &case.parts {
@@ -180,7 +210,7 @@ pub fn summary(case: &Case) -> String {
             s,
             "  {}: {}, {}",
             p.name,
-            mat(&p.material),
+            mat(p.material),
             shape_text(&p.shape, u, unit)
         );
     }
@@ -196,37 +226,13 @@ pub fn summary(case: &Case) -> String {
                 crate::case::ConductorKind::Solid => "solid",
                 crate::case::ConductorKind::Stranded => "stranded",
             },
-            mat(&c.material),
+            mat(c.material),
             shape_text(&c.shape, u, unit)
         );
     }
     let _ = writeln!(s, "coils: {}", case.coils.len());
     for c in &case.coils {
-        let wire = match c.wire.awg {
-            Some(n) => format!("AWG {n} ({} mm bare)", fmt_g(c.wire.diameter * 1e3)),
-            None => format!("{} mm bare", fmt_g(c.wire.diameter * 1e3)),
-        };
-        let drive = if c.current == 0.0 {
-            "open circuit".to_string()
-        } else {
-            format!(
-                "driven {} A rms at {}°",
-                fmt_g(c.current),
-                fmt_g(c.phase_deg)
-            )
-        };
-        let window = match &c.window {
-            CoilWindow::Single(sh) => shape_text(sh, u, unit),
-            CoilWindow::Sides(v) => format!("{} sides", v.len()),
-        };
-        let _ = writeln!(
-            s,
-            "  {}: {} turns of {wire}, fill {}, {} °C, {drive}, {window}",
-            c.name,
-            fmt_g(c.turns),
-            fmt_g(c.fill_factor),
-            fmt_g(c.temperature_c)
-        );
+        let _ = writeln!(s, "{}", coil_line(c, u, unit));
     }
     if let Some(c) = &case.circuit {
         let load = match c.load {
@@ -236,7 +242,7 @@ pub fn summary(case: &Case) -> String {
         let _ = writeln!(
             s,
             "circuit: coil {}, tuning {}, {load}",
-            c.coil,
+            case.coil(c.coil).name,
             match c.tuning {
                 crate::case::Tuning::Series => "series",
                 crate::case::Tuning::Parallel => "parallel",

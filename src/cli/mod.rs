@@ -278,9 +278,6 @@ fn study_help(e: &StudyError) -> &'static str {
         StudyError::Build(B::DomainShape) => {
             "give [domain] a rect = { min = [..], max = [..] } or a circle = { center = [..], radius = R }"
         }
-        StudyError::Build(B::UnknownMaterial(_)) => {
-            "define the material in a [materials.NAME] table, or use air, copper or aluminium"
-        }
         StudyError::Curve(..) => {
             "check the material's B-H points: they start at [0, 0] and rise in both H and B"
         }
@@ -648,9 +645,9 @@ fn new_case(ui: &Ui, kind: &str, out: Option<PathBuf>, force: bool) -> Result<()
 
 /// `fluxpick explain`: one key's reference entry, or the list of keys.
 fn explain(key: Option<&str>) -> Result<(), i32> {
-    use crate::schema::{lookup, render_terminal, Lookup};
+    use crate::case::schema::{lookup, render_terminal, Lookup};
     let Some(key) = key else {
-        print!("{}", crate::schema::key_list());
+        print!("{}", crate::case::schema::key_list());
         return Ok(());
     };
     match lookup(key) {

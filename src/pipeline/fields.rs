@@ -43,12 +43,12 @@ pub fn curves(case: &Case, model: &Model) -> Result<Vec<Option<BhCurve>>, StudyE
         .iter()
         .map(|o| {
             let mat = match o {
-                Owner::Part(i) => Some(&case.parts[*i].material),
-                Owner::Conductor(i) => Some(&case.conductors[*i].material),
+                Owner::Part(i) => Some(case.material(case.parts[*i].material)),
+                Owner::Conductor(i) => Some(case.material(case.conductors[*i].material)),
                 _ => None,
             }?;
-            let pts = case.materials.get(mat)?.bh.as_ref()?;
-            Some(BhCurve::new(pts).map_err(|e| (mat.clone(), e)))
+            let pts = mat.bh.as_ref()?;
+            Some(BhCurve::new(pts).map_err(|e| (mat.name.clone(), e)))
         })
         .map(|c| c.transpose())
         .collect::<Result<_, _>>()
@@ -147,7 +147,7 @@ pub fn solve(
         mesh,
         formulation: model.formulation,
         order: model.order,
-        materials: model.materials(case)?,
+        materials: model.materials(case),
         windings: model.windings(case),
         background: case
             .background

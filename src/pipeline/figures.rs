@@ -41,43 +41,10 @@ pub fn context(case: &Case) -> Context {
     }
 }
 
-fn centroid(shape: &Shape) -> [f64; 2] {
-    match shape {
-        Shape::Rect { min, max } => [0.5 * (min[0] + max[0]), 0.5 * (min[1] + max[1])],
-        Shape::Circle { center, .. }
-        | Shape::Ellipse { center, .. }
-        | Shape::Annulus { center, .. } => *center,
-        Shape::Polygon(p) => {
-            let n = p.len() as f64;
-            [
-                p.iter().map(|q| q[0]).sum::<f64>() / n,
-                p.iter().map(|q| q[1]).sum::<f64>() / n,
-            ]
-        }
-    }
-}
-
 /// Bounding box `(min, max)` of a shape.
 pub fn shape_bbox(shape: &Shape) -> ([f64; 2], [f64; 2]) {
-    match shape {
-        Shape::Rect { min, max } => (*min, *max),
-        Shape::Circle { center, radius } => (
-            [center[0] - radius, center[1] - radius],
-            [center[0] + radius, center[1] + radius],
-        ),
-        Shape::Ellipse { center, semi_axes } => (
-            [center[0] - semi_axes[0], center[1] - semi_axes[1]],
-            [center[0] + semi_axes[0], center[1] + semi_axes[1]],
-        ),
-        Shape::Annulus { center, outer, .. } => (
-            [center[0] - outer, center[1] - outer],
-            [center[0] + outer, center[1] + outer],
-        ),
-        Shape::Polygon(p) => (
-            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::INFINITY, f64::min)),
-            [0, 1].map(|k| p.iter().map(|q| q[k]).fold(f64::NEG_INFINITY, f64::max)),
-        ),
-    }
+    let b = shape.bbox();
+    (b.min, b.max)
 }
 
 /// Bounding box `[min, max]` of the space a coil encloses: axisymmetric, from the axis to
@@ -105,12 +72,12 @@ pub fn mean_turn_length(case: &Case, window: &CoilWindow) -> f64 {
     match (case.symmetry, window) {
         (Symmetry::Axisymmetric, w) => {
             let shapes = w.shapes();
-            let r = shapes.iter().map(|(s, _)| centroid(s)[0]).sum::<f64>() / shapes.len() as f64;
+            let r = shapes.iter().map(|(s, _)| s.centroid()[0]).sum::<f64>() / shapes.len() as f64;
             TAU * r
         }
         (Symmetry::Planar, CoilWindow::Sides(sides)) if sides.len() >= 2 => {
-            let a = centroid(&sides[0].0);
-            let b = centroid(&sides[1].0);
+            let a = sides[0].0.centroid();
+            let b = sides[1].0.centroid();
             2.0 * case.depth + 2.0 * (a[0] - b[0]).hypot(a[1] - b[1])
         }
         (Symmetry::Planar, _) => case.depth,
@@ -130,14 +97,14 @@ fn part_specs(case: &Case, model: &Model) -> Vec<design::PartSpec> {
         .iter()
         .enumerate()
         .map(|(i, p)| {
-            let material = case.materials.get(&p.material);
+            let material = case.material(p.material);
             design::PartSpec {
-                material: p.material.clone(),
+                material: material.name.clone(),
                 regions: model.regions_of(|o| *o == Owner::Part(i)),
-                b_sat: material.and_then(|m| m.b_sat),
+                b_sat: material.b_sat,
                 skin_depth_m: skin_of(model, &p.name),
                 section: case.background.as_ref().map(|b| Section {
-                    centroid: centroid(&p.shape),
+                    centroid: p.shape.centroid(),
                     bbox: shape_bbox(&p.shape),
                     direction: b.direction,
                     b: b.b,
@@ -154,10 +121,7 @@ fn conductor_specs(case: &Case, model: &Model) -> Vec<design::ConductorSpec> {
         .map(|(i, c)| design::ConductorSpec {
             winding: case.coils.len() + i,
             regions: model.regions_of(|o| *o == Owner::Conductor(i)),
-            sigma: case
-                .materials
-                .get(&c.material)
-                .map_or(0.0, |m| m.conductivity),
+            sigma: case.material(c.material).conductivity,
             solid: c.kind == ConductorKind::Solid,
             current: c.current,
             phase_deg: c.phase_deg,
@@ -175,22 +139,17 @@ fn core_of(case: &Case, model: &Model, coil: &Coil) -> Vec<CorePart> {
     case.parts
         .iter()
         .enumerate()
-        .filter(|(_, p)| {
-            case.materials
-                .get(&p.material)
-                .is_some_and(|m| m.mu_r > 1.0)
-                && inside(centroid(&p.shape))
-        })
+        .filter(|(_, p)| case.material(p.material).mu_r > 1.0 && inside(p.shape.centroid()))
         .map(|(k, p)| CorePart {
             name: p.name.clone(),
             regions: model.regions_of(|o| *o == Owner::Part(k)),
-            density: case.materials.get(&p.material).and_then(|m| m.density),
+            density: case.material(p.material).density,
         })
         .collect()
 }
 
-fn harvest_of(case: &Case, coil: &Coil) -> Harvest {
-    let circuit = case.circuit.as_ref().filter(|k| k.coil == coil.name);
+fn harvest_of(case: &Case, index: usize) -> Harvest {
+    let circuit = case.circuit.as_ref().filter(|k| k.coil.index() == index);
     Harvest {
         tuning: circuit.map_or(Tuning::Series, |k| match k.tuning {
             crate::case::Tuning::Series => Tuning::Series,
@@ -221,7 +180,7 @@ fn coil_specs(case: &Case, model: &Model) -> Vec<design::CoilSpec> {
             mean_turn_length: mean_turn_length(case, &c.window),
             window_regions: model.regions_of(|o| matches!(o, Owner::CoilSide(k, 0, _) if *k == i)),
             core: core_of(case, model, c),
-            harvest: harvest_of(case, c),
+            harvest: harvest_of(case, i),
             applied_b: case.background.as_ref().map(|b| b.b),
         })
         .collect()

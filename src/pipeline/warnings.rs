@@ -64,7 +64,7 @@ fn part_warnings(case: &Case, r: &Results) -> Vec<String> {
         if peak > bs {
             w.push(format!(
                 "part `{}`: peak |B| {} exceeds the saturation flux density {} of `{}`; the linear result does not hold there",
-                p.name, eng(peak, "T"), eng(bs, "T"), p.material
+                p.name, eng(peak, "T"), eng(bs, "T"), case.material(p.material).name
             ));
         } else if peak > 0.8 * bs {
             w.push(format!(

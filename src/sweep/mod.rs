@@ -16,7 +16,7 @@ use crate::case::{resolve, Case, RawCase, SourceInfo};
 pub mod journal;
 pub mod record;
 
-use crate::pipeline as study;
+use crate::pipeline;
 use crate::settings::Settings;
 use fluxpick_postproc::atomic_write;
 pub use record::{csv_text, figure_keys, Crossing, Point, PointResult, SweepRecord};
@@ -121,7 +121,7 @@ pub fn points(case: &Case) -> Vec<Point> {
 
 /// Scalar figures of a results record by dotted key (arrays and nulls left out, and the
 /// run times, which differ from run to run).
-pub fn flatten(results: &study::Results) -> BTreeMap<String, f64> {
+pub fn flatten(results: &pipeline::Results) -> BTreeMap<String, f64> {
     fn walk(prefix: &str, v: &serde_json::Value, out: &mut BTreeMap<String, f64>) {
         match v {
             serde_json::Value::Object(m) => {
@@ -162,7 +162,7 @@ pub fn in_shard(index: usize, shard: Option<(usize, usize)>) -> bool {
 fn solve_point(raw: &RawCase, src: &SourceInfo, p: &Point, settings: &Settings) -> PointResult {
     let outcome = resolve(raw, src, &p.parameters)
         .map_err(|e| e.render_plain())
-        .and_then(|c| study::run(&c, settings).map_err(|e| e.to_string()));
+        .and_then(|c| pipeline::run(&c, settings).map_err(|e| e.to_string()));
     match outcome {
         Ok(run) => PointResult {
             index: p.index,

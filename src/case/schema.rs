@@ -514,7 +514,7 @@ pub fn reference_markdown() -> String {
     let mut out = String::new();
     out.push_str(
         "# Case-file reference\n\n\
-         <!-- Generated from src/schema.rs by tests/case_reference.rs: do not edit by hand.\n     \
+         <!-- Generated from src/case/schema.rs by tests/case_reference.rs: do not edit by hand.\n     \
          Regenerate with FLUXPICK_BLESS=1 cargo test --release --test case_reference. -->\n\n\
          Every key a fluxpick case file accepts. A case is one TOML file; unknown keys are an \
          error. `fluxpick explain KEY` prints any entry below in the terminal, and \
