@@ -99,153 +99,174 @@ fn region(shape: &Shape, size: Option<f64>, background: f64) -> RegionInput {
     }
 }
 
+/// The mesh regions in drawing order (parts, conductors, coil sides), their owners (air
+/// first) and the skin layers of the regions that carry eddy currents at f > 0.
+fn regions(case: &Case) -> (Vec<RegionInput>, Vec<Owner>, Vec<SkinLayer>) {
+    let h = case.domain.mesh_size;
+    let mut regions = Vec::new();
+    let mut owners = vec![Owner::Air];
+    let order = case.element_order;
+    let mut skin = Vec::new();
+    // A skin layer on every region that carries eddy currents at f > 0.
+    let mut layer = |r: &mut RegionInput, name: &str, material: MaterialId, own: Option<f64>| {
+        let m = case.material(material);
+        if case.frequency <= 0.0 || m.conductivity <= 0.0 {
+            return;
+        }
+        let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
+        let size = own.unwrap_or(depth * skin_fraction(order));
+        let inside = r.max_edge.unwrap_or(h);
+        if size < inside {
+            r.skin_edge = Some(size);
+        }
+        skin.push(SkinLayer {
+            name: name.to_string(),
+            depth_m: depth,
+            surface_size_m: size.min(inside),
+        });
+    };
+    for (i, p) in case.parts.iter().enumerate() {
+        let mut r = region(&p.shape, p.mesh_size, h);
+        layer(&mut r, &p.name, p.material, p.skin_mesh_size);
+        regions.push(r);
+        owners.push(Owner::Part(i));
+    }
+    for (i, c) in case.conductors.iter().enumerate() {
+        let mut r = region(&c.shape, c.mesh_size, h);
+        if c.kind == ConductorKind::Solid {
+            layer(&mut r, &c.name, c.material, c.skin_mesh_size);
+        }
+        regions.push(r);
+        owners.push(Owner::Conductor(i));
+    }
+    for (i, c) in case.coils.iter().enumerate() {
+        for (k, (shape, sense)) in c.window.shapes().into_iter().enumerate() {
+            regions.push(region(shape, c.mesh_size, h));
+            owners.push(Owner::CoilSide(i, k, sense));
+        }
+    }
+    (regions, owners, skin)
+}
+
+/// The sides where the potential is held: flux-parallel edges, every side of a fixed
+/// boundary, and the axis of an axisymmetric model.
+fn fixed_sides(case: &Case) -> Vec<Side> {
+    let axi = case.symmetry == Symmetry::Axisymmetric;
+    let edge = |s: DomainSide| case.domain.edges.iter().find(|e| e.0 == s).map(|e| e.1);
+    let mut dirichlet = Vec::new();
+    // Flux-parallel edges hold the potential; flux-normal ones are natural.
+    for s in [
+        DomainSide::Left,
+        DomainSide::Right,
+        DomainSide::Bottom,
+        DomainSide::Top,
+    ] {
+        match (case.domain.boundary, edge(s)) {
+            (_, Some(EdgeKind::FluxParallel)) => dirichlet.push(side_of(s)),
+            (BoundaryKind::Fixed, None) => dirichlet.push(side_of(s)),
+            _ => {}
+        }
+    }
+    if case.domain.boundary == BoundaryKind::Fixed {
+        dirichlet.push(Side::Arc);
+    }
+    if axi && !dirichlet.contains(&Side::Left) {
+        dirichlet.push(Side::Left); // the axis: A = 0
+    }
+    dirichlet
+}
+
+/// The outer boundary to mesh and whether it carries an exterior image (open boundaries).
+fn outer_boundary(case: &Case) -> Result<(Outer, bool), BuildError> {
+    let axi = case.symmetry == Symmetry::Axisymmetric;
+    let edge = |s: DomainSide| case.domain.edges.iter().find(|e| e.0 == s).map(|e| e.1);
+    Ok(match (&case.domain.shape, case.domain.boundary) {
+        (Shape::Rect { min, max }, BoundaryKind::Fixed) => (
+            Outer::Rect {
+                min: *min,
+                max: *max,
+            },
+            false,
+        ),
+        (Shape::Circle { center, radius }, BoundaryKind::Fixed) => (
+            Outer::Disk {
+                center: *center,
+                radius: *radius,
+                cuts: Cuts::default(),
+            },
+            false,
+        ),
+        (Shape::Circle { center, radius }, BoundaryKind::Open) => (
+            Outer::Disk {
+                center: *center,
+                radius: *radius,
+                cuts: Cuts::default(),
+            },
+            true,
+        ),
+        (Shape::Rect { min, max }, BoundaryKind::Open) => {
+            let has = |s| edge(s).is_some();
+            for (a, b) in [
+                (DomainSide::Left, DomainSide::Right),
+                (DomainSide::Bottom, DomainSide::Top),
+            ] {
+                if has(a) && has(b) {
+                    return Err(BuildError::OpposedSymmetryEdges(a, b));
+                }
+            }
+            if axi && min[0].abs() > 1e-12 * (max[0] - min[0]) {
+                return Err(BuildError::AxisymmetricDomainOffAxis(min[0]));
+            }
+            let cuts = Cuts {
+                left: axi || has(DomainSide::Left),
+                right: has(DomainSide::Right),
+                bottom: has(DomainSide::Bottom),
+                top: has(DomainSide::Top),
+            };
+            let cx = if cuts.left {
+                min[0]
+            } else if cuts.right {
+                max[0]
+            } else {
+                0.5 * (min[0] + max[0])
+            };
+            let cy = if cuts.bottom {
+                min[1]
+            } else if cuts.top {
+                max[1]
+            } else {
+                0.5 * (min[1] + max[1])
+            };
+            let far = [min, max]
+                .iter()
+                .flat_map(|a| [min, max].map(|b| [a[0], b[1]]))
+                .map(|p| (p[0] - cx).hypot(p[1] - cy))
+                .fold(0.0, f64::max);
+            (
+                Outer::Disk {
+                    center: [cx, cy],
+                    radius: OPEN_DISK_MARGIN * far,
+                    cuts,
+                },
+                true,
+            )
+        }
+        _ => return Err(BuildError::DomainShape),
+    })
+}
+
 impl Model {
     pub fn new(case: &Case) -> Result<Model, BuildError> {
         let axi = case.symmetry == Symmetry::Axisymmetric;
-        let h = case.domain.mesh_size;
-        let mut regions = Vec::new();
-        let mut owners = vec![Owner::Air];
-        let order = case.element_order;
-        let mut skin = Vec::new();
-        // A skin layer on every region that carries eddy currents at f > 0.
-        let mut layer =
-            |r: &mut RegionInput, name: &str, material: MaterialId, own: Option<f64>| {
-                let m = case.material(material);
-                if case.frequency <= 0.0 || m.conductivity <= 0.0 {
-                    return;
-                }
-                let depth = skin_depth(case.frequency, m.mu_r, m.conductivity);
-                let size = own.unwrap_or(depth * skin_fraction(order));
-                let inside = r.max_edge.unwrap_or(h);
-                if size < inside {
-                    r.skin_edge = Some(size);
-                }
-                skin.push(SkinLayer {
-                    name: name.to_string(),
-                    depth_m: depth,
-                    surface_size_m: size.min(inside),
-                });
-            };
-        for (i, p) in case.parts.iter().enumerate() {
-            let mut r = region(&p.shape, p.mesh_size, h);
-            layer(&mut r, &p.name, p.material, p.skin_mesh_size);
-            regions.push(r);
-            owners.push(Owner::Part(i));
-        }
-        for (i, c) in case.conductors.iter().enumerate() {
-            let mut r = region(&c.shape, c.mesh_size, h);
-            if c.kind == ConductorKind::Solid {
-                layer(&mut r, &c.name, c.material, c.skin_mesh_size);
-            }
-            regions.push(r);
-            owners.push(Owner::Conductor(i));
-        }
-        for (i, c) in case.coils.iter().enumerate() {
-            for (k, (shape, sense)) in c.window.shapes().into_iter().enumerate() {
-                regions.push(region(shape, c.mesh_size, h));
-                owners.push(Owner::CoilSide(i, k, sense));
-            }
-        }
-        let edge = |s: DomainSide| case.domain.edges.iter().find(|e| e.0 == s).map(|e| e.1);
-        let mut dirichlet = Vec::new();
-        // Flux-parallel edges hold the potential; flux-normal ones are natural.
-        for s in [
-            DomainSide::Left,
-            DomainSide::Right,
-            DomainSide::Bottom,
-            DomainSide::Top,
-        ] {
-            match (case.domain.boundary, edge(s)) {
-                (_, Some(EdgeKind::FluxParallel)) => dirichlet.push(side_of(s)),
-                (BoundaryKind::Fixed, None) => dirichlet.push(side_of(s)),
-                _ => {}
-            }
-        }
-        if case.domain.boundary == BoundaryKind::Fixed {
-            dirichlet.push(Side::Arc);
-        }
-        if axi && !dirichlet.contains(&Side::Left) {
-            dirichlet.push(Side::Left); // the axis: A = 0
-        }
-        let (outer, exterior_image) = match (&case.domain.shape, case.domain.boundary) {
-            (Shape::Rect { min, max }, BoundaryKind::Fixed) => (
-                Outer::Rect {
-                    min: *min,
-                    max: *max,
-                },
-                false,
-            ),
-            (Shape::Circle { center, radius }, BoundaryKind::Fixed) => (
-                Outer::Disk {
-                    center: *center,
-                    radius: *radius,
-                    cuts: Cuts::default(),
-                },
-                false,
-            ),
-            (Shape::Circle { center, radius }, BoundaryKind::Open) => (
-                Outer::Disk {
-                    center: *center,
-                    radius: *radius,
-                    cuts: Cuts::default(),
-                },
-                true,
-            ),
-            (Shape::Rect { min, max }, BoundaryKind::Open) => {
-                let has = |s| edge(s).is_some();
-                for (a, b) in [
-                    (DomainSide::Left, DomainSide::Right),
-                    (DomainSide::Bottom, DomainSide::Top),
-                ] {
-                    if has(a) && has(b) {
-                        return Err(BuildError::OpposedSymmetryEdges(a, b));
-                    }
-                }
-                if axi && min[0].abs() > 1e-12 * (max[0] - min[0]) {
-                    return Err(BuildError::AxisymmetricDomainOffAxis(min[0]));
-                }
-                let cuts = Cuts {
-                    left: axi || has(DomainSide::Left),
-                    right: has(DomainSide::Right),
-                    bottom: has(DomainSide::Bottom),
-                    top: has(DomainSide::Top),
-                };
-                let cx = if cuts.left {
-                    min[0]
-                } else if cuts.right {
-                    max[0]
-                } else {
-                    0.5 * (min[0] + max[0])
-                };
-                let cy = if cuts.bottom {
-                    min[1]
-                } else if cuts.top {
-                    max[1]
-                } else {
-                    0.5 * (min[1] + max[1])
-                };
-                let far = [min, max]
-                    .iter()
-                    .flat_map(|a| [min, max].map(|b| [a[0], b[1]]))
-                    .map(|p| (p[0] - cx).hypot(p[1] - cy))
-                    .fold(0.0, f64::max);
-                (
-                    Outer::Disk {
-                        center: [cx, cy],
-                        radius: OPEN_DISK_MARGIN * far,
-                        cuts,
-                    },
-                    true,
-                )
-            }
-            _ => return Err(BuildError::DomainShape),
-        };
+        let (regions, mut owners, skin) = regions(case);
+        let dirichlet = fixed_sides(case);
+        let (outer, exterior_image) = outer_boundary(case)?;
         if exterior_image {
             owners.push(Owner::Exterior);
         }
         let spec = MeshSpec {
             outer,
-            background_max_edge: h,
+            background_max_edge: case.domain.mesh_size,
             regions,
             clip_at_axis: axi,
             exterior_image,
@@ -259,7 +280,7 @@ impl Model {
             } else {
                 Formulation::Planar
             },
-            order,
+            order: case.element_order,
             dirichlet,
             skin,
         })
