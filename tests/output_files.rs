@@ -1,5 +1,5 @@
 //! The files `solve` and `mesh` write are what they claim: results.json carries the keys of
-//! the contract (shared/CASE-FORMAT.md), and the .vtu files read back in a general-purpose VTK
+//! the contract (docs/case-format.md), and the .vtu files read back in a general-purpose VTK
 //! reader (the vtkio crate) with the advertised arrays.
 
 mod common;
@@ -166,4 +166,96 @@ fn solve_plot_writes_a_field_picture() {
     assert!(svg.matches("<rect").count() > 100, "shading");
     assert!(svg.contains(r#"stroke="white""#) && svg.contains(r#"stroke="black""#));
     assert!(svg.contains("contours of A") && svg.contains("T</text>"));
+}
+
+/// Conjugate gradients preconditioned by the diagonal, on a symmetric positive definite
+/// sparse matrix (a textbook method, e.g. Saad, "Iterative Methods for Sparse Linear
+/// Systems", alg. 9.1); our own few lines, independent of the program's direct solver.
+fn jacobi_cg(k: &sprs::CsMat<f64>, b: &[f64]) -> Vec<f64> {
+    let n = b.len();
+    let diag: Vec<f64> = (0..n).map(|i| *k.get(i, i).unwrap()).collect();
+    let mul = |x: &[f64]| -> Vec<f64> {
+        let mut y = vec![0.0; n];
+        for (v, (i, j)) in k.iter() {
+            y[i] += v * x[j];
+        }
+        y
+    };
+    let dot = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| x * y).sum::<f64>();
+    let mut x = vec![0.0; n];
+    let mut r = b.to_vec();
+    let mut z: Vec<f64> = r.iter().zip(&diag).map(|(r, d)| r / d).collect();
+    let mut p = z.clone();
+    let mut rz = dot(&r, &z);
+    let b_norm = dot(b, b).sqrt();
+    for _ in 0..50 * n {
+        let q = mul(&p);
+        let alpha = rz / dot(&p, &q);
+        for i in 0..n {
+            x[i] += alpha * p[i];
+            r[i] -= alpha * q[i];
+        }
+        if dot(&r, &r).sqrt() < 1e-13 * b_norm {
+            break;
+        }
+        z = r.iter().zip(&diag).map(|(r, d)| r / d).collect();
+        let rz_new = dot(&r, &z);
+        for i in 0..n {
+            p[i] = z[i] + rz_new / rz * p[i];
+        }
+        rz = rz_new;
+    }
+    x
+}
+
+/// `solve --matrix-market` writes the assembled system, read back by sprs's own Matrix
+/// Market reader: K is square over the unknowns and symmetric, and the coil's inductance
+/// from it by an independent route (our conjugate gradients: L = Fᵀ K⁻¹ F for the coil's
+/// column F at 1 A, the energy of the Galerkin solution) equals results.json's.
+#[test]
+fn solve_matrix_market_writes_the_assembled_system() {
+    let (dir, case) = write_case("rod.toml", CASE);
+    let out = dir.path().join("out");
+    let o = fluxpick(&[
+        "solve",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--matrix-market",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("results.json")).unwrap()).unwrap();
+    let k: sprs::CsMat<f64> = sprs::io::read_matrix_market(out.join("system-matrix.mtx"))
+        .unwrap()
+        .to_csc();
+    let f: sprs::CsMat<f64> = sprs::io::read_matrix_market(out.join("system-rhs.mtx"))
+        .unwrap()
+        .to_csc();
+    let n = get(&r, "mesh.unknowns") as usize;
+    assert_eq!(k.shape(), (n, n));
+    assert_eq!(
+        f.shape(),
+        (n, 2),
+        "the pickup's column and the background's"
+    );
+    for (v, (i, j)) in k.iter() {
+        let t = *k.get(j, i).expect("symmetric pattern");
+        assert!((v - t).abs() <= 1e-12 * v.abs().max(t.abs()), "K[{i},{j}]");
+    }
+    let unknowns = std::fs::read_to_string(out.join("system-unknowns.csv")).unwrap();
+    assert!(unknowns.starts_with("# right-hand-side columns: pickup, background\n"));
+    assert_eq!(unknowns.lines().count(), n + 2);
+    let mut b = vec![0.0; n];
+    for (i, v) in f.outer_view(0).unwrap().iter() {
+        b[i] = *v;
+    }
+    let u = jacobi_cg(&k, &b);
+    let l: f64 = u.iter().zip(&b).map(|(x, y)| x * y).sum();
+    assert_rel(
+        "L = Fᵀ K⁻¹ F by conjugate gradients against results.json",
+        l,
+        get(&r, "coils.pickup.inductance_h"),
+        1e-8,
+    );
 }

@@ -134,16 +134,10 @@ fn effective_materials(
     Ok((mats, EFFECTIVE_PASSES, false))
 }
 
-/// Solves the case on `mesh`: the fields at the case's currents and applied field.
-pub fn solve(
-    case: &Case,
-    model: &Model,
-    mesh: &Mesh,
-    curves: &[Option<BhCurve>],
-) -> Result<(Fields, SolveNotes), StudyError> {
-    let ac = case.frequency > 0.0;
-    let saturating = curves.iter().any(|c| c.is_some());
-    let problem = Problem {
+/// The solver's problem of the case on `mesh`, with the materials' own (unsaturated)
+/// permeabilities.
+pub fn problem<'a>(case: &Case, model: &Model, mesh: &'a Mesh) -> Problem<'a> {
+    Problem {
         mesh,
         formulation: model.formulation,
         order: model.order,
@@ -154,7 +148,19 @@ pub fn solve(
             .as_ref()
             .map(|b| [b.b * b.direction[0], b.b * b.direction[1]]),
         dirichlet: model.dirichlet.clone(),
-    };
+    }
+}
+
+/// Solves the case on `mesh`: the fields at the case's currents and applied field.
+pub fn solve(
+    case: &Case,
+    model: &Model,
+    mesh: &Mesh,
+    curves: &[Option<BhCurve>],
+) -> Result<(Fields, SolveNotes), StudyError> {
+    let ac = case.frequency > 0.0;
+    let saturating = curves.iter().any(|c| c.is_some());
+    let problem = problem(case, model, mesh);
     if !saturating {
         // one solve: the one-shot solver frees the pattern's assembly map before the
         // factorisation, where memory peaks (a kept set-up holds it for later refills)

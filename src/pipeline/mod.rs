@@ -108,6 +108,21 @@ pub fn solve_on(
     Ok((run, notes))
 }
 
+/// The case's assembled magnetostatic system (stiffness K with the materials' own μr, one
+/// right-hand side per winding at 1 A and one for the applied field), for a user who studies
+/// the system itself (exported as Matrix Market by `solve --matrix-market`). At f > 0 this is
+/// the K of the time-harmonic system, without its jωσ terms.
+pub fn static_system(
+    case: &Case,
+    settings: &Settings,
+) -> Result<fluxpick_solver::StaticSystem, StudyError> {
+    let model = Model::new(case)?;
+    let mesh = mesh::mesh(case, &model, settings, None)?;
+    Ok(fluxpick_solver::static_system(&fields::problem(
+        case, &model, &mesh,
+    ))?)
+}
+
 /// The solver's own figures: times per stage, matrix size, residual, method.
 fn solve_figures(
     fields: &fluxpick_postproc::fields::Fields,
