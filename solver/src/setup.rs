@@ -76,12 +76,15 @@ pub struct SolverSetup {
 
 pub(crate) struct Inner {
     pub(crate) disc: Arc<Discretisation>,
-    pub(crate) pattern: Pattern,
+    /// Made by the first solve, beside the ordering (both need only the mesh), or on first
+    /// use.
+    pattern: OnceLock<Pattern>,
     pub(crate) windings: Vec<Winding>,
     pub(crate) background: Option<[f64; 2]>,
     /// Per region: the cross-section area ∫dS and ∫dS/r (the area in planar form).
     area: Vec<f64>,
     area_inv_r: Vec<f64>,
+    ordering: OnceLock<Result<Option<Vec<usize>>, SolveError>>,
     analysis: OnceLock<Result<CholeskyAnalysis, SolveError>>,
     locator: OnceLock<Arc<Locator>>,
     seconds: f64,
@@ -134,16 +137,16 @@ impl SolverSetup {
                 });
             }
         }
-        let (pattern, (area, area_inv_r)) =
-            rayon::join(|| Pattern::new(&d), || region_measures(&d));
+        let (area, area_inv_r) = region_measures(&d);
         Ok(SolverSetup {
             inner: Arc::new(Inner {
                 disc: Arc::new(d),
-                pattern,
+                pattern: OnceLock::new(),
                 windings: p.windings.clone(),
                 background: p.background,
                 area,
                 area_inv_r,
+                ordering: OnceLock::new(),
                 analysis: OnceLock::new(),
                 locator: OnceLock::new(),
                 seconds: t0.elapsed().as_secs_f64(),
@@ -160,7 +163,9 @@ impl SolverSetup {
 
     /// The sparsity pattern of the node unknowns (the static matrix, the Jacobians, K + ωσM).
     pub fn pattern(&self) -> &Pattern {
-        &self.inner.pattern
+        self.inner
+            .pattern
+            .get_or_init(|| Pattern::new(&self.inner.disc))
     }
 
     /// Number of node unknowns.
@@ -183,33 +188,48 @@ impl SolverSetup {
         }
     }
 
+    /// The fill-reducing ordering, made on first use and kept (an error too: it depends on
+    /// the mesh alone).
+    fn ordering(&self) -> Result<&Option<Vec<usize>>, SolveError> {
+        let i = &self.inner;
+        i.ordering
+            .get_or_init(|| {
+                i.orderings.fetch_add(1, Relaxed::Relaxed);
+                crate::ordering::nested_dissection(&i.disc)
+            })
+            .as_ref()
+            .map_err(Clone::clone)
+    }
+
     /// The symbolic analysis, made (with its ordering) on first use and kept; an error of
     /// either is kept too (they depend on the pattern alone).
     pub(crate) fn analysis(&self) -> Result<&CholeskyAnalysis, SolveError> {
         let i = &self.inner;
         i.analysis
             .get_or_init(|| {
-                i.orderings.fetch_add(1, Relaxed::Relaxed);
-                let ordering = crate::ordering::nested_dissection(&i.disc)?;
+                let ordering = self.ordering()?.clone();
                 i.analyses.fetch_add(1, Relaxed::Relaxed);
-                CholeskyAnalysis::with_ordering(&i.pattern, ordering)
+                CholeskyAnalysis::with_ordering(self.pattern(), ordering)
             })
             .as_ref()
             .map_err(Clone::clone)
     }
 
-    /// Runs `work` with the ordering and the symbolic analysis made beside it when they are
-    /// not made yet (they need only the mesh and the pattern). Returns what `work` returned
-    /// and the seconds spent waiting for the analysis after `work` was done.
+    /// Runs `work` (an assembly, which builds the pattern on first use) with the ordering
+    /// made beside it when it is not made yet: it needs only the mesh, and METIS runs on one
+    /// thread while the pattern and the assembly take the others. The symbolic analysis
+    /// follows when a solve asks for it.
+    /// Returns what `work` returned and the seconds spent waiting for the ordering after
+    /// `work` was done.
     pub(crate) fn analysis_beside<T: Send>(&self, work: impl FnOnce() -> T + Send) -> (T, f64) {
-        if self.inner.analysis.get().is_some() {
+        if self.inner.ordering.get().is_some() {
             return (work(), 0.0);
         }
         let t0 = Instant::now();
         let (_, (out, worked)) = rayon::join(
             || {
                 // an error is kept and returned by the solve that asks for the analysis
-                let _ = self.analysis();
+                let _ = self.ordering();
             },
             || {
                 let t = Instant::now();
@@ -227,17 +247,15 @@ impl SolverSetup {
         F: Fn(usize) -> Option<Vec<T>> + Sync,
     {
         self.inner.assemblies.fetch_add(1, Relaxed::Relaxed);
-        self.inner
-            .pattern
-            .assemble(self.inner.disc.n_cells(), local)
+        self.pattern().assemble(self.inner.disc.n_cells(), local)
     }
 
     /// Frees the pattern's assembly map when this is the only handle on the set-up: the
     /// one-shot solves do that before their factorisation, where memory peaks. No further
     /// assembly may be made through it (they are not: the handle is private to them).
     pub(crate) fn release_assembly_map(&mut self) {
-        if let Some(i) = Arc::get_mut(&mut self.inner) {
-            i.pattern.release_assembly_map();
+        if let Some(p) = Arc::get_mut(&mut self.inner).and_then(|i| i.pattern.get_mut()) {
+            p.release_assembly_map();
         }
     }
 
