@@ -23,6 +23,7 @@ use std::time::{Duration, Instant};
 use serde::{Deserialize, Serialize};
 
 use super::record::{csv_text, PointResult, SweepRecord};
+use super::SweepError;
 use fluxpick_postproc::atomic_write;
 
 /// File name of the journal inside the sweep's output folder.
@@ -100,14 +101,13 @@ impl Journal {
     /// Opens the journal in `dir` (created if needed). With `resume`, an existing journal of
     /// the same sweep is read back; one of another sweep is an error. Without it, any
     /// existing journal is replaced.
-    pub fn open(dir: &Path, header: Header, resume: bool) -> Result<(Journal, Opened), String> {
-        std::fs::create_dir_all(dir)
-            .map_err(|e| format!("cannot create {}: {e}", dir.display()))?;
+    pub fn open(dir: &Path, header: Header, resume: bool) -> Result<(Journal, Opened), SweepError> {
+        std::fs::create_dir_all(dir).map_err(SweepError::io("create", dir))?;
         let path = dir.join(JOURNAL_FILE);
         let existing = match std::fs::read_to_string(&path) {
             Ok(t) => Some(t),
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
-            Err(e) => return Err(format!("cannot read {}: {e}", path.display())),
+            Err(e) => return Err(SweepError::io("read", &path)(e)),
         };
         let mut done = BTreeMap::new();
         let mut torn = 0;
@@ -116,16 +116,13 @@ impl Journal {
                 let mut lines = text.split_inclusive('\n');
                 let first = lines.next().unwrap_or("");
                 let old: Header = serde_json::from_str(first.trim_end()).map_err(|e| {
-                    format!(
-                        "{} is not a sweep journal ({e}); remove it or run without --resume",
-                        path.display()
-                    )
+                    SweepError::NotAJournal {
+                        path: path.clone(),
+                        reason: e.to_string(),
+                    }
                 })?;
                 if old != header {
-                    return Err(format!(
-                        "{} belongs to another sweep (the case file, its sweeps or the shard changed since it was written); run without --resume to start over",
-                        path.display()
-                    ));
+                    return Err(SweepError::OtherSweep { path: path.clone() });
                 }
                 for line in lines {
                     // a line without its newline was cut short by a kill
@@ -149,16 +146,15 @@ impl Journal {
             },
         };
         // (re)write the journal whole: the header and the points kept, then append
-        let mut text = serde_json::to_string(&header).map_err(|e| e.to_string())? + "\n";
+        let mut text = serde_json::to_string(&header).map_err(SweepError::encode)? + "\n";
         for p in done.values() {
-            text += &(serde_json::to_string(p).map_err(|e| e.to_string())? + "\n");
+            text += &(serde_json::to_string(p).map_err(SweepError::encode)? + "\n");
         }
-        atomic_write(&path, text.as_bytes())
-            .map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+        atomic_write(&path, text.as_bytes()).map_err(SweepError::io("write", &path))?;
         let file = std::fs::OpenOptions::new()
             .append(true)
             .open(&path)
-            .map_err(|e| format!("cannot open {}: {e}", path.display()))?;
+            .map_err(SweepError::io("open", &path))?;
         Ok((
             Journal {
                 header,
@@ -186,19 +182,19 @@ impl Journal {
 
     /// Appends a finished point and syncs it to disk; rewrites `sweep.csv` when the last
     /// rewrite is more than a second old.
-    pub fn record(&self, p: PointResult) -> Result<(), String> {
-        let line = serde_json::to_string(&p).map_err(|e| e.to_string())? + "\n";
+    pub fn record(&self, p: PointResult) -> Result<(), SweepError> {
+        let line = serde_json::to_string(&p).map_err(SweepError::encode)? + "\n";
         let mut st = self.lock();
         st.file
             .write_all(line.as_bytes())
             .and_then(|()| st.file.sync_data())
-            .map_err(|e| format!("cannot append to {}: {e}", self.path.display()))?;
+            .map_err(SweepError::io("append to", &self.path))?;
         st.done.insert(p.index, p);
         if st.last_csv.is_none_or(|t| t.elapsed() >= CSV_INTERVAL) {
             let rec = self.record_of(&st.done);
             let csv = csv_text(&rec)?;
-            atomic_write(&self.dir.join("sweep.csv"), csv.as_bytes())
-                .map_err(|e| format!("cannot write {}/sweep.csv: {e}", self.dir.display()))?;
+            let path = self.dir.join("sweep.csv");
+            atomic_write(&path, csv.as_bytes()).map_err(SweepError::io("write", &path))?;
             st.last_csv = Some(Instant::now());
         }
         Ok(())
@@ -219,10 +215,9 @@ impl Journal {
     }
 
     /// Removes the journal (after the complete outputs are written).
-    pub fn finish(self) -> Result<(), String> {
+    pub fn finish(self) -> Result<(), SweepError> {
         drop(self.state);
-        std::fs::remove_file(&self.path)
-            .map_err(|e| format!("cannot remove {}: {e}", self.path.display()))
+        std::fs::remove_file(&self.path).map_err(SweepError::io("remove", &self.path))
     }
 }
 
@@ -288,7 +283,8 @@ mod tests {
         let e = Journal::open(dir.path(), header("changed case"), true)
             .err()
             .unwrap();
-        assert!(e.contains("another sweep"), "{e}");
+        assert!(matches!(e, SweepError::OtherSweep { .. }), "{e}");
+        assert!(e.to_string().contains("another sweep"), "{e}");
         let (j, o) = Journal::open(dir.path(), header("changed case"), false).unwrap();
         assert_eq!(
             o,

@@ -21,6 +21,55 @@ use crate::settings::Settings;
 use fluxpick_postproc::atomic_write;
 pub use record::{csv_text, figure_keys, Crossing, Point, PointResult, SweepRecord};
 
+/// Why a sweep's journal, merge or files failed.
+#[derive(Debug, thiserror::Error)]
+pub enum SweepError {
+    #[error("cannot {action} {}: {source}", .path.display())]
+    Io {
+        action: &'static str,
+        path: std::path::PathBuf,
+        source: std::io::Error,
+    },
+    #[error("{} is not a sweep journal ({reason}); remove it or run without --resume", .path.display())]
+    NotAJournal {
+        path: std::path::PathBuf,
+        reason: String,
+    },
+    #[error("{} belongs to another sweep (the case file, its sweeps or the shard changed since it was written); run without --resume to start over", .path.display())]
+    OtherSweep { path: std::path::PathBuf },
+    #[error("nothing to merge")]
+    NothingToMerge,
+    #[error("the shards are not of one sweep: parameters {first:?} of {first_points} points vs {other:?} of {other_points}")]
+    NotOneSweep {
+        first: Vec<String>,
+        first_points: usize,
+        other: Vec<String>,
+        other_points: usize,
+    },
+    #[error("no point has both `{x}` and `{key}`")]
+    NothingToPlot { x: String, key: String },
+    /// A table, record or plot could not be encoded.
+    #[error("{0}")]
+    Encode(String),
+}
+
+impl SweepError {
+    /// An I/O failure of `action` on `path`.
+    pub fn io(action: &'static str, path: &Path) -> impl FnOnce(std::io::Error) -> SweepError {
+        let path = path.to_path_buf();
+        move |source| SweepError::Io {
+            action,
+            path,
+            source,
+        }
+    }
+
+    /// An encoding failure (serde, csv, plotting).
+    pub fn encode(e: impl std::fmt::Display) -> SweepError {
+        SweepError::Encode(e.to_string())
+    }
+}
+
 /// Saturation crossings of a sweep over one parameter (or one group, by its first
 /// parameter): for every part with a saturation flux density, where its peak and its mean
 /// |B| reach 80 % and 100 % of it.
@@ -242,14 +291,14 @@ pub fn run_sweep_journaled(
     settings: &Settings,
     journal: &journal::Journal,
     done: &(dyn Fn() + Sync),
-) -> Result<(SweepRecord, bool), String> {
+) -> Result<(SweepRecord, bool), SweepError> {
     let finished: std::collections::BTreeSet<usize> = journal.done_indices().into_iter().collect();
     let todo: Vec<Point> = points(case)
         .into_iter()
         .filter(|p| in_shard(p.index, shard) && !finished.contains(&p.index))
         .collect();
     let settings = settings.shared_by(rayon::current_num_threads());
-    let failures: Vec<String> = todo
+    let failures: Vec<SweepError> = todo
         .par_iter()
         .filter_map(|p| {
             if crate::interrupt::cancelled() {
@@ -273,15 +322,17 @@ pub fn run_sweep_journaled(
 }
 
 /// Joins the records of several shards of one sweep: points by index, each once.
-pub fn merge(records: &[SweepRecord]) -> Result<SweepRecord, String> {
-    let first = records.first().ok_or("nothing to merge")?;
+pub fn merge(records: &[SweepRecord]) -> Result<SweepRecord, SweepError> {
+    let first = records.first().ok_or(SweepError::NothingToMerge)?;
     let mut points: BTreeMap<usize, PointResult> = BTreeMap::new();
     for r in records {
         if r.parameters != first.parameters || r.total_points != first.total_points {
-            return Err(format!(
-                "the shards are not of one sweep: parameters {:?} of {} points vs {:?} of {}",
-                first.parameters, first.total_points, r.parameters, r.total_points
-            ));
+            return Err(SweepError::NotOneSweep {
+                first: first.parameters.clone(),
+                first_points: first.total_points,
+                other: r.parameters.clone(),
+                other_points: r.total_points,
+            });
         }
         for p in &r.points {
             points.entry(p.index).or_insert_with(|| p.clone());
@@ -342,7 +393,7 @@ fn unit_of(key: &str) -> &'static str {
 
 /// An SVG plot of `key` against parameter `x`, one line per combination of the other
 /// swept parameters. `x_unit` labels the parameter (the case's length unit, say).
-pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<String, String> {
+pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<String, SweepError> {
     use plotters::prelude::*;
     let mut series: BTreeMap<String, Vec<(f64, f64)>> = BTreeMap::new();
     for p in &rec.points {
@@ -362,7 +413,10 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
         series.entry(label).or_default().push((*xv, *y));
     }
     if series.is_empty() {
-        return Err(format!("no point has both `{x}` and `{key}`"));
+        return Err(SweepError::NothingToPlot {
+            x: x.to_string(),
+            key: key.to_string(),
+        });
     }
     let all: Vec<(f64, f64)> = series.values().flatten().copied().collect();
     let (mut x0, mut x1) = all.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |a, p| {
@@ -385,7 +439,7 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (720, 480)).into_drawing_area();
-        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        root.fill(&WHITE).map_err(SweepError::encode)?;
         let unit = unit_of(key);
         let mut chart = ChartBuilder::on(&root)
             .caption(format!("{key} against {x}"), ("sans-serif", 20))
@@ -393,7 +447,7 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
             .x_label_area_size(40)
             .y_label_area_size(80)
             .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(|e| e.to_string())?;
+            .map_err(SweepError::encode)?;
         chart
             .configure_mesh()
             .x_desc(if x_unit.is_empty() {
@@ -409,14 +463,14 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
             .y_label_formatter(&|v| format!("{v:.3e}"))
             .light_line_style(RGBColor(238, 238, 238))
             .draw()
-            .map_err(|e| e.to_string())?;
+            .map_err(SweepError::encode)?;
         let palette = [BLUE, RED, GREEN, MAGENTA, CYAN, BLACK];
         for (i, (label, mut pts)) in series.into_iter().enumerate() {
             pts.sort_by(|a, b| a.0.total_cmp(&b.0));
             let color = palette[i % palette.len()];
             let s = chart
                 .draw_series(LineSeries::new(pts.clone(), color.stroke_width(2)))
-                .map_err(|e| e.to_string())?;
+                .map_err(SweepError::encode)?;
             if !label.is_empty() {
                 s.label(label).legend(move |(x, y)| {
                     PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2))
@@ -424,7 +478,7 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
             }
             chart
                 .draw_series(pts.iter().map(|p| Circle::new(*p, 3, color.filled())))
-                .map_err(|e| e.to_string())?;
+                .map_err(SweepError::encode)?;
         }
         if rec.parameters.len() > 1 {
             chart
@@ -432,9 +486,9 @@ pub fn plot_svg(rec: &SweepRecord, key: &str, x: &str, x_unit: &str) -> Result<S
                 .background_style(WHITE.mix(0.8))
                 .border_style(BLACK)
                 .draw()
-                .map_err(|e| e.to_string())?;
+                .map_err(SweepError::encode)?;
         }
-        root.present().map_err(|e| e.to_string())?;
+        root.present().map_err(SweepError::encode)?;
     }
     Ok(svg)
 }
@@ -446,25 +500,28 @@ pub fn write_outputs(
     rec: &SweepRecord,
     plot_keys: &[String],
     x_unit: &str,
-) -> Result<Vec<String>, String> {
-    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create {}: {e}", dir.display()))?;
+) -> Result<Vec<String>, SweepError> {
+    std::fs::create_dir_all(dir).map_err(SweepError::io("create", dir))?;
     let csv = csv_text(rec)?;
-    atomic_write(&dir.join("sweep.csv"), csv.as_bytes()).map_err(|e| e.to_string())?;
-    let json = serde_json::to_string_pretty(rec).map_err(|e| e.to_string())?;
-    atomic_write(&dir.join("sweep.json"), format!("{json}\n").as_bytes())
-        .map_err(|e| e.to_string())?;
+    let path = dir.join("sweep.csv");
+    atomic_write(&path, csv.as_bytes()).map_err(SweepError::io("write", &path))?;
+    let json = serde_json::to_string_pretty(rec).map_err(SweepError::encode)?;
+    let path = dir.join("sweep.json");
+    atomic_write(&path, format!("{json}\n").as_bytes()).map_err(SweepError::io("write", &path))?;
     let crossings = saturation_crossings(rec);
     if !crossings.is_empty() {
-        let text = serde_json::to_string_pretty(&crossings).map_err(|e| e.to_string())?;
-        atomic_write(&dir.join("crossings.json"), format!("{text}\n").as_bytes())
-            .map_err(|e| e.to_string())?;
+        let text = serde_json::to_string_pretty(&crossings).map_err(SweepError::encode)?;
+        let path = dir.join("crossings.json");
+        atomic_write(&path, format!("{text}\n").as_bytes())
+            .map_err(SweepError::io("write", &path))?;
     }
     let mut written = Vec::new();
     for key in plot_keys {
         for x in &rec.parameters {
             let svg = plot_svg(rec, key, x, x_unit)?;
             let name = format!("{}-vs-{x}.svg", key.replace('.', "_"));
-            atomic_write(&dir.join(&name), svg.as_bytes()).map_err(|e| e.to_string())?;
+            let path = dir.join(&name);
+            atomic_write(&path, svg.as_bytes()).map_err(SweepError::io("write", &path))?;
             written.push(name);
         }
     }

@@ -57,14 +57,15 @@ pub fn figure_keys(rec: &SweepRecord) -> Vec<String> {
 
 /// `sweep.csv`: one row per point, the parameters, then every figure by dotted key, then
 /// `error` (empty when the point solved).
-pub fn csv_text(rec: &SweepRecord) -> Result<String, String> {
+pub fn csv_text(rec: &SweepRecord) -> Result<String, super::SweepError> {
+    use super::SweepError;
     let keys = figure_keys(rec);
     let mut w = csv::Writer::from_writer(Vec::new());
     let mut header = vec!["point".to_string()];
     header.extend(rec.parameters.iter().cloned());
     header.extend(keys.iter().cloned());
     header.push("error".into());
-    w.write_record(&header).map_err(|e| e.to_string())?;
+    w.write_record(&header).map_err(SweepError::encode)?;
     for p in &rec.points {
         let mut row = vec![p.index.to_string()];
         for name in &rec.parameters {
@@ -83,8 +84,8 @@ pub fn csv_text(rec: &SweepRecord) -> Result<String, String> {
             );
         }
         row.push(p.error.clone().unwrap_or_default().replace('\n', " "));
-        w.write_record(&row).map_err(|e| e.to_string())?;
+        w.write_record(&row).map_err(SweepError::encode)?;
     }
-    let bytes = w.into_inner().map_err(|e| e.to_string())?;
-    String::from_utf8(bytes).map_err(|e| e.to_string())
+    let bytes = w.into_inner().map_err(SweepError::encode)?;
+    String::from_utf8(bytes).map_err(SweepError::encode)
 }
