@@ -10,7 +10,8 @@
 //! To stay fast the build uses its own target folder seeded with hard links to this build's
 //! compiled crates, and the clone's files are dated before them, so that cargo reuses them
 //! (see the comment at the seeding); the clone's binary cannot replace the one the other
-//! tests run.
+//! tests run. Crates that the tests' dev-dependencies build with other features than a build
+//! of the binary alone are rebuilt in the clone (DEVELOPERS.md, "Building and testing").
 
 mod common;
 
