@@ -1,7 +1,7 @@
 //! Lagrange triangles of first and second order, and the element kernels.
 //!
 //! Kernels are pure functions over fixed-size arrays: node coordinates in, local matrices out.
-//! The weak forms (DESIGN.md §3), with w = 1 (planar) or w = 2πr (axisymmetric):
+//! The weak forms (docs/physics.md, "Formulations"), with w = 1 (planar) or w = 2πr (axisymmetric):
 //!
 //! * planar A_z: `∫ ν ∇A·∇v dS`, so the "curl vector" of a basis function is `∇N`;
 //! * axisymmetric A_φ: `∫ ν [∂A/∂z ∂v/∂z + (∂A/∂r + A/r)(∂v/∂r + v/r)] 2πr dS`, so the curl

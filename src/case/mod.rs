@@ -1,5 +1,5 @@
 //! Case files: TOML text → raw serde structs ([`raw`]) → the typed, validated [`Case`] in SI
-//! units ([`model`]). The format is the v1 contract in shared/CASE-FORMAT.md.
+//! units ([`model`]). The format is the contract in docs/case-format.md.
 //!
 //! ```no_run
 //! use std::collections::BTreeMap;

@@ -1,4 +1,4 @@
-//! Raw serde structs mirroring the case format (shared/CASE-FORMAT.md) key for key.
+//! Raw serde structs mirroring the case format (docs/case-format.md) key for key.
 //!
 //! Nothing here is validated beyond what serde and TOML check (known keys, types, array
 //! lengths); units are not applied and expressions are not evaluated. Every value that a later

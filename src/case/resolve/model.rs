@@ -9,7 +9,7 @@ use fluxpick_mesh::BBox;
 use crate::case::model::{Domain, Order};
 use crate::case::raw::{RawModel, RawRefinement};
 
-/// Default planar depth: 1 m (CASE-FORMAT.md).
+/// Default planar depth: 1 m (docs/case-format.md).
 pub const DEFAULT_DEPTH_M: f64 = 1.0;
 /// Speed of light in vacuum, m/s (exact, SI definition of the metre).
 const SPEED_OF_LIGHT: f64 = 299_792_458.0;
