@@ -1,7 +1,7 @@
 //! Integration tests of case loading (`fluxpick::case`): the library, not the binary.
 //!
 //! Physics values used here: AWG 30 bare diameter 0.25464 mm (ASTM B258, via
-//! shared/REFERENCES.md); built-in conductivities copper 5.8e7 S/m and aluminium 3.5e7 S/m
+//! docs/references.md); built-in conductivities copper 5.8e7 S/m and aluminium 3.5e7 S/m
 //! (typical values, no source); 1 in = 25.4 mm (definition).
 
 use std::collections::BTreeMap;
@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 
 use fluxpick::case::*;
 
-/// The example in shared/CASE-FORMAT.md, verbatim: it must be accepted as written.
+/// The example in docs/case-format.md, verbatim: it must be accepted as written.
 const CONTRACT: &str = r#"
 [model]
 title = "Ferrite rod, uniform axial field"
