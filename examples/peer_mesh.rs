@@ -31,7 +31,7 @@
 //!   over the mid-plane disk of the spheroid over B0 (the peer's figure). Reference: the
 //!   uniform interior field of the spheroid in open space; the box's truncation is part of
 //!   the error, as in the peer's table (about 4.7e-4 relative for the 1 m box and 7e-6 for
-//!   4 m by REFERENCES.md's estimate (2/3)(a²c/R³)·B_in/B0).
+//!   4 m by docs/references.md's estimate (2/3)(a²c/R³)·B_in/B0).
 //! * `C` planar at 60 Hz: a solid aluminium wire, r = 20 mm, σ = 3.5e7 S/m, a total current
 //!   imposed, A = 0 on the circle of 200 mm. Figure `Rac_Rdc`: loss / (I² R_dc) with
 //!   R_dc = 1/(σ S), S the area of the mesh's conductor polygon. Reference: the Bessel
@@ -176,7 +176,7 @@ fn box_bar_mean_b() -> f64 {
 /// Demagnetising factor of a prolate spheroid along its long axis, m = c/a > 1:
 /// N = [m/√(m²−1) · ln(m + √(m²−1)) − 1]/(m² − 1) (Osborn, "Demagnetizing factors of the
 /// general ellipsoid", Phys. Rev. 67, 351 (1945); Stoner, Phil. Mag. 36, 803 (1945)).
-/// REFERENCES.md tabulates N = 0.0558210 for m = 5.
+/// docs/references.md tabulates N = 0.0558210 for m = 5.
 fn prolate_demag(c: f64, a: f64) -> f64 {
     let m = c / a;
     let s = (m * m - 1.0).sqrt();
@@ -664,7 +664,7 @@ mod tests {
         assert!((g.iter().map(|p| p.1).sum::<f64>() - 2.0).abs() < 1e-14);
     }
 
-    /// Osborn's N for m = 5 and the ratio at μr 1000 (REFERENCES.md's table).
+    /// Osborn's N for m = 5 and the ratio at μr 1000 (docs/references.md's table).
     #[test]
     fn spheroid_reference() {
         assert!((prolate_demag(0.1, 0.02) - 0.0558210).abs() < 5e-8);

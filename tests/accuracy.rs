@@ -218,7 +218,7 @@ mesh_size = 5
 }
 
 /// Prolate spheroid, aspect 5, μr 1000, in a uniform axial field: B inside = B0 μr/(1 +
-/// (μr − 1)N) with N from Osborn (Phys. Rev. 67, 351, 1945), 17.6164 B0 (REFERENCES.md).
+/// (μr − 1)N) with N from Osborn (Phys. Rev. 67, 351, 1945), 17.6164 B0 (docs/references.md).
 /// Here the polygon standing for the ellipse carries most of the error, which the loop
 /// tracks through the curved interface (src/adapt.rs, `curved_interfaces`).
 #[test]

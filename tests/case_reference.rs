@@ -298,7 +298,7 @@ fn type_fits(ty: Type, seen: &Seen, elem: Option<&Seen>) -> bool {
 // ---------------------------------------------------------------------------------------
 // the tests
 
-/// Checks the tracer itself on keys known from CASE-FORMAT.md, so that a tracer that found
+/// Checks the tracer itself on keys known from docs/case-format.md, so that a tracer that found
 /// nothing could not pass the checks below vacuously.
 #[test]
 fn tracer_finds_known_keys() {

@@ -13,7 +13,7 @@ const MU0: f64 = 4.0e-7 * PI;
 /// coils", Proc. IRE 16, 1398, 1928): L = 0.8 a² N² / (6a + 9b + 10c) µH with inches, i.e.
 /// 31.5 a² N² / (6a + 9b + 10c) µH with metres; a the mean radius, b the length, c the
 /// depth of the winding; about 1 % when the three terms of the denominator are comparable
-/// (REFERENCES.md gives the metric form with the constant 31.6, from memory).
+/// (docs/references.md gives the metric form with the constant 31.6, from memory).
 #[test]
 fn air_cored_multilayer_coil_matches_wheeler() {
     let r = solve_text(

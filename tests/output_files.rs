@@ -1,6 +1,6 @@
 //! The files `solve` and `mesh` write are what they claim: results.json carries the keys of
-//! the contract (docs/case-format.md, "Results"), and the .vtu files read back in a general-purpose VTK
-//! reader (the vtkio crate) with the advertised arrays.
+//! the contract (docs/case-format.md, "Results"), and the .vtu files read back in a
+//! general-purpose VTK reader (the vtkio crate) with the advertised arrays.
 
 mod common;
 use common::*;

@@ -6,7 +6,7 @@ use common::*;
 
 #[test]
 fn reference_formulas_match_published_values() {
-    // Check values from shared/REFERENCES.md (computed there with scipy/mpmath).
+    // Check values from docs/references.md (computed with scipy/mpmath).
     assert!((osborn_prolate(5.0) - 0.0558210).abs() < 1e-7);
     assert!((osborn_prolate(2.0) - 0.1735640).abs() < 1e-7);
     assert!((maxwell_mutual(0.01, 0.01, 0.01) - 4.940785e-9).abs() < 1e-15);
@@ -27,7 +27,7 @@ fn reference_formulas_match_published_values() {
 }
 
 /// Ampère's law: B = μ0 I r/(2πa²) inside a round wire, μ0 I/(2πr) outside
-/// (REFERENCES.md "Straight wires": 100 A at 0.1 m gives 200.000 µT).
+/// (docs/references.md, "Straight wires": 100 A at 0.1 m gives 200.000 µT).
 #[test]
 fn round_wire_inside_and_outside_planar() {
     let r = solve_text(
@@ -65,7 +65,8 @@ line = { from = [5, 0], to = [100, 0], points = 20 }
 }
 
 /// A permeable cylinder in a uniform transverse field has a uniform interior field
-/// B_in/B0 = 2μr/(μr + 1) (classical 2D potential solution; REFERENCES.md: 1.980198 at μr 100).
+/// B_in/B0 = 2μr/(μr + 1) (classical 2D potential solution; docs/references.md: 1.980198 at
+/// μr 100).
 #[test]
 fn permeable_cylinder_in_transverse_field() {
     let r = solve_text(
@@ -160,7 +161,7 @@ mesh_size = 1
 
 /// Prolate spheroid (aspect 5, μr 1000) in a uniform axial field: uniform interior field
 /// B_in/B0 = μr/(1 + N(μr − 1)) with Osborn's N (Osborn, Phys. Rev. 67, 351, 1945;
-/// REFERENCES.md: 17.6164).
+/// docs/references.md: 17.6164).
 #[test]
 fn prolate_spheroid_interior_field() {
     let r = solve_text(
@@ -195,7 +196,7 @@ mesh_size = 1.0
     );
 }
 
-/// Field of a single loop on its axis and off it (Smythe / Jackson 5.37; REFERENCES.md:
+/// Field of a single loop on its axis and off it (Smythe / Jackson 5.37; docs/references.md:
 /// loop a = 10 mm, 1 A: centre B_z = 62.83185 µT; at (ρ 5, z 5 mm) B_ρ = 16.16891 µT,
 /// B_z = 43.45849 µT).
 #[test]
@@ -242,7 +243,7 @@ line = { from = [0, 0], to = [5, 5], points = 2 }
     );
 }
 
-/// Mutual inductance of two coaxial loops (Maxwell, Treatise §701; REFERENCES.md:
+/// Mutual inductance of two coaxial loops (Maxwell, Treatise §701; docs/references.md:
 /// a = 10, b = 15, d = 5 mm: 11.84650 nH), by the flux and the energy routes.
 #[test]
 fn coaxial_loops_mutual_inductance() {
@@ -292,7 +293,7 @@ mesh_size = 0.1
 }
 
 /// Single-layer solenoid a = 10 mm, N = 100, l = 50 mm: L = k_N μ0 π a² N²/l = 67.1017 µH
-/// (Lorenz / Nagaoka 1909, REFERENCES.md). Modelled as a 0.05 mm thick winding at mean
+/// (Lorenz / Nagaoka 1909, docs/references.md). Modelled as a 0.05 mm thick winding at mean
 /// radius a; a shell of thickness t lowers L by about t/(3a) = 0.17 % (derived here).
 #[test]
 fn single_layer_solenoid_inductance() {

@@ -88,7 +88,7 @@ mod tests {
     use super::*;
     use std::f64::consts::TAU;
 
-    /// REFERENCES.md "Resonance": 28.15 H with 250 nF resonates at 59.99443 Hz.
+    /// docs/references.md, "Resonance": 28.15 H with 250 nF resonates at 59.99443 Hz.
     #[test]
     fn resonance_of_a_rod_coil() {
         let f = resonant_frequency(28.15, 250e-9);
@@ -97,7 +97,7 @@ mod tests {
         assert!((c - 250e-9).abs() / 250e-9 < 1e-6);
     }
 
-    /// REFERENCES.md: 1 V rms into a 1 kΩ coil resistance gives 250 µW matched.
+    /// docs/references.md: 1 V rms into a 1 kΩ coil resistance gives 250 µW matched.
     #[test]
     fn matched_power_and_series_resonance() {
         assert!((matched_power(1.0, 1000.0) - 250e-6).abs() < 1e-12);

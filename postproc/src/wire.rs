@@ -3,7 +3,7 @@
 //!
 //! Sources: AWG bare diameters from ASTM B258, d = 0.127 mm · 92^((36 − n)/39); copper
 //! resistivity 1.7241e-8 Ω·m at 20 °C (IEC 60028, annealed copper standard); temperature
-//! coefficient 0.00393 /K and density 8.89 g/cm³ are values from memory (shared/REFERENCES.md
+//! coefficient 0.00393 /K and density 8.89 g/cm³ are values from memory (docs/references.md
 //! marks them [memory]). The enamel build formula is an approximation from memory, see
 //! [`overall_diameter`].
 //!
@@ -101,7 +101,7 @@ pub fn turns_that_fit(window_area: f64, d: f64, fill_factor: f64) -> f64 {
 mod tests {
     use super::*;
 
-    /// ASTM B258 diameters and IEC 60028 resistance at 20 °C, from shared/REFERENCES.md.
+    /// ASTM B258 diameters and IEC 60028 resistance at 20 °C, from docs/references.md.
     const TABLE: [(u32, f64, f64); 4] = [
         (24, 0.51056e-3, 0.084213),
         (28, 0.32109e-3, 0.212916),

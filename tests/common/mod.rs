@@ -1,6 +1,6 @@
 //! Shared helpers of the integration tests: run the real binary on a case, read its
 //! results, and analytic reference formulas (each naming its source; values checked against
-//! shared/REFERENCES.md in `reference_formulas_match_published_values`).
+//! docs/references.md in `reference_formulas_match_published_values`).
 #![allow(dead_code)]
 
 pub mod vtu;
