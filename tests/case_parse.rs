@@ -9,7 +9,8 @@ use std::path::{Path, PathBuf};
 
 use fluxpick::case::*;
 
-/// The example in docs/case-format.md, verbatim: it must be accepted as written.
+/// The example in docs/case-format.md, verbatim (checked by
+/// `contract_example_is_the_one_in_docs`): it must be accepted as written.
 const CONTRACT: &str = r#"
 [model]
 title = "Ferrite rod, uniform axial field"
@@ -216,6 +217,18 @@ fn expect(e: &CaseError, text: &str, kind: CaseErrorKind, key: &str, needle: &st
 
 // ---------------------------------------------------------------------------------------
 // valid cases
+
+/// The contract's example here is the first TOML block of docs/case-format.md, so that the
+/// document and the test cannot drift apart.
+#[test]
+fn contract_example_is_the_one_in_docs() {
+    let doc =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/case-format.md"))
+            .expect("docs/case-format.md");
+    let start = doc.find("```toml\n").expect("a TOML block") + "```toml\n".len();
+    let block = &doc[start..start + doc[start..].find("```").expect("end of the block")];
+    assert_eq!(block.trim(), CONTRACT.trim());
+}
 
 #[test]
 fn contract_example_is_accepted_as_written() {

@@ -1,11 +1,12 @@
 //! The files `solve` and `mesh` write are what they claim: results.json carries the keys of
-//! the contract (docs/case-format.md), and the .vtu files read back in a general-purpose VTK
-//! reader (the vtkio crate) with the advertised arrays.
+//! the contract (docs/case-format.md, "Results"), and the .vtu files read back in a
+//! general-purpose VTK reader (the vtkio crate) with the advertised arrays.
 
 mod common;
 use common::*;
 
-use vtkio::model::{Attribute, DataSet, Piece};
+use common::vtu;
+use vtkio::model::CellType;
 
 const CASE: &str = r#"
 [model]
@@ -36,25 +37,22 @@ name = "axis"
 line = { from = [0, -80], to = [0, 80], points = 9 }
 "#;
 
-fn read_vtu(path: &std::path::Path) -> vtkio::model::UnstructuredGridPiece {
-    let vtk = vtkio::Vtk::import(path).unwrap_or_else(|e| panic!("{}: {e:?}", path.display()));
-    match vtk.data {
-        DataSet::UnstructuredGrid { pieces, .. } => match pieces.into_iter().next() {
-            Some(Piece::Inline(p)) => *p,
-            _ => panic!("no inline piece"),
-        },
-        _ => panic!("not an unstructured grid"),
-    }
+/// The cells whose corner centroid lies inside `inside`, and their total area (m²).
+fn cells_in(v: &vtu::Vtu, inside: impl Fn([f64; 2]) -> bool) -> (Vec<usize>, f64) {
+    let cells: Vec<usize> = (0..v.cells.len())
+        .filter(|&c| inside(v.centroid(c)))
+        .collect();
+    let area = cells.iter().map(|&c| v.cell_area(c)).sum();
+    (cells, area)
 }
 
-fn array(attrs: &[Attribute], name: &str) -> Vec<f64> {
-    attrs
-        .iter()
-        .find_map(|a| match a {
-            Attribute::DataArray(d) if d.name == name => d.data.cast_into::<f64>(),
-            _ => None,
-        })
-        .unwrap_or_else(|| panic!("no array {name}"))
+/// The cell type `solve` writes for results.json's `mesh.element_order`.
+fn cell_type(r: &serde_json::Value) -> CellType {
+    match get(r, "mesh.element_order") as u32 {
+        1 => CellType::Triangle,
+        2 => CellType::QuadraticTriangle,
+        n => panic!("element order {n}"),
+    }
 }
 
 #[test]
@@ -91,23 +89,49 @@ fn solve_writes_contract_keys_and_a_readable_field_vtu() {
     assert_eq!(r["probes"]["axis"]["points"].as_array().unwrap().len(), 9);
     assert_eq!(r["probes"]["axis"]["b_t"].as_array().unwrap().len(), 9);
 
-    let p = read_vtu(&out.join("field.vtu"));
-    assert_eq!(p.num_points() as f64, get(&r, "mesh.nodes"));
-    assert_eq!(p.cells.types.len() as f64, get(&r, "mesh.triangles"));
-    let babs = array(&p.data.cell, "B_abs");
-    let mu = array(&p.data.cell, "mu_r");
-    let a = array(&p.data.point, "A");
-    assert_eq!(a.len(), p.num_points());
-    assert_eq!(babs.len(), p.cells.types.len());
-    assert!(mu.contains(&1000.0) && mu.contains(&1.0));
+    // field.vtu read back: one point per node and one cell per triangle of results.json,
+    // of the type its element order says, with the arrays docs/guide.md (section 3) lists
+    // for a static case
+    let v = vtu::read(&out.join("field.vtu"));
+    assert_eq!(v.points.len() as f64, get(&r, "mesh.nodes"));
+    assert_eq!(v.cells.len() as f64, get(&r, "mesh.triangles"));
+    assert!(v.types.iter().all(|t| *t == cell_type(&r)));
+    assert_eq!(
+        v.names(),
+        (
+            vec!["A"],
+            vec!["B", "B_abs", "J", "error_indicator", "mu_r", "region"]
+        )
+    );
+    let babs = &v.cell("B_abs").values;
+    let mu = &v.cell("mu_r").values;
+    assert_eq!(v.point("A").components, 1);
+    let b = v.cell("B");
+    assert_eq!(b.components, 3);
+    // Wiring check (the writer's |B| against its own B vector), paired with the geometry
+    // and field checks below.
+    for (c, abs) in babs.iter().enumerate() {
+        let (x, y, z) = (b.values[3 * c], b.values[3 * c + 1], b.values[3 * c + 2]);
+        assert_eq!(z, 0.0);
+        assert!(
+            (x.hypot(y) - abs).abs() <= 1e-12 * abs.max(1e-30),
+            "cell {c}"
+        );
+    }
+    // Independent of the program: the cells of μr 1000 are the core the case draws,
+    // 5 × 80 mm (r from 0 to 5 mm, z from -40 to 40 mm), and only those.
+    let (core, core_area) = cells_in(&v, |p| p[0] < 5e-3 && p[1].abs() < 40e-3);
+    assert!(core.iter().all(|&c| mu[c] == 1000.0));
+    assert_eq!(
+        core.len(),
+        mu.iter().filter(|m| **m == 1000.0).count(),
+        "μr 1000 outside the core"
+    );
+    assert_rel("core area in field.vtu", core_area, 5e-3 * 80e-3, 1e-9);
+    assert!(mu.iter().all(|m| *m == 1000.0 || *m == 1.0));
     // The core concentrates the field: its cells carry the largest |B|.
     let peak = babs.iter().copied().fold(0.0, f64::max);
-    let core_peak = babs
-        .iter()
-        .zip(&mu)
-        .filter(|(_, m)| **m == 1000.0)
-        .map(|(b, _)| *b)
-        .fold(0.0, f64::max);
+    let core_peak = core.iter().map(|&c| babs[c]).fold(0.0, f64::max);
     assert!(
         core_peak == peak && peak > 5e-6,
         "peak |B| {peak}, in the core {core_peak}"
@@ -119,6 +143,9 @@ fn solve_writes_contract_keys_and_a_readable_field_vtu() {
     }
 }
 
+/// `mesh` writes mesh.vtu: it reads back with the counts `mesh --json` prints and that
+/// results.json gives for the same case (its triangles plus the exterior image's), the
+/// region areas the case draws, and per-cell smallest angles that match the cells' corners.
 #[test]
 fn mesh_writes_a_readable_mesh_vtu() {
     let (dir, case) = write_case("rod.toml", CASE);
@@ -128,23 +155,85 @@ fn mesh_writes_a_readable_mesh_vtu() {
         case.to_str().unwrap(),
         "--out",
         out.to_str().unwrap(),
+        "--json",
     ]);
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let text = String::from_utf8_lossy(&o.stdout);
+    let json_start = text.find('{').expect("JSON on standard output");
+    let stats: serde_json::Value = serde_json::Deserializer::from_str(&text[json_start..])
+        .into_iter()
+        .next()
+        .expect("one JSON value")
+        .expect("valid JSON");
     assert!(
         text.contains("core") && text.contains("triangles"),
         "{text}"
     );
-    let p = read_vtu(&out.join("mesh.vtu"));
-    let region = array(&p.data.cell, "region");
-    let angle = array(&p.data.cell, "min_angle_deg");
-    assert_eq!(region.len(), p.cells.types.len());
-    assert!(region.contains(&1.0), "core region present");
-    assert!(
-        angle.iter().all(|a| *a > 20.0),
-        "min angle {}",
-        angle.iter().copied().fold(90.0, f64::min)
+    let v = vtu::read(&out.join("mesh.vtu"));
+    assert_eq!(v.points.len() as f64, get(&stats, "nodes"));
+    assert_eq!(v.cells.len() as f64, get(&stats, "triangles"));
+    assert!(v.types.iter().all(|t| *t == CellType::Triangle));
+    assert_eq!(
+        v.names(),
+        (vec![], vec!["material", "min_angle_deg", "region"])
     );
+    let solved = solve(&case, &dir.path().join("s"));
+    assert_eq!(
+        v.cells.len() as f64,
+        get(&solved, "mesh.triangles") + get(&solved, "mesh.exterior_triangles"),
+        "mesh.vtu holds the solve's triangles and the exterior image's"
+    );
+
+    // Per region: the triangle count and area `mesh --json` reports (a wiring check of two
+    // outputs of one mesh), and for the core and the coil window the areas the case draws
+    // (independent: 5 × 80 mm and 2.5 × 60 mm; straight sides, so exact).
+    let region = &v.cell("region").values;
+    let regions = stats["regions"].as_array().expect("regions");
+    for (i, r) in regions.iter().enumerate() {
+        let (cells, area) = cells_in_region(&v, region, i);
+        assert_eq!(cells as f64, get(r, "triangles"), "region {i}");
+        assert_rel(&format!("region {i} area"), area, get(r, "area_m2"), 1e-9);
+        let drawn = match r["name"].as_str() {
+            Some("core") => Some(5e-3 * 80e-3),
+            Some("pickup/0") => Some(2.5e-3 * 60e-3),
+            _ => None,
+        };
+        if let Some(a) = drawn {
+            assert_rel(&format!("{} area as drawn", r["name"]), area, a, 1e-9);
+        }
+    }
+    assert!(regions.iter().any(|r| r["name"] == "core"));
+
+    // The smallest-angle array against the angles of each cell's corners as read back.
+    let angle = &v.cell("min_angle_deg").values;
+    for (c, a) in angle.iter().enumerate() {
+        let p = |k: usize| v.points[v.cells[c][k]];
+        let corner = |o: [f64; 3], a: [f64; 3], b: [f64; 3]| {
+            let (u, w) = ([a[0] - o[0], a[1] - o[1]], [b[0] - o[0], b[1] - o[1]]);
+            (u[0] * w[1] - u[1] * w[0])
+                .abs()
+                .atan2(u[0] * w[0] + u[1] * w[1])
+                .to_degrees()
+        };
+        let min = corner(p(0), p(1), p(2))
+            .min(corner(p(1), p(2), p(0)))
+            .min(corner(p(2), p(0), p(1)));
+        assert!(
+            (min - a).abs() < 1e-6,
+            "cell {c}: {a}° written, {min}° read"
+        );
+    }
+    let smallest = angle.iter().copied().fold(90.0, f64::min);
+    assert_eq!(smallest, get(&stats, "min_angle_deg"));
+    assert!(smallest > 20.0, "min angle {smallest}");
+}
+
+/// The number of cells whose `region` value is `i`, and their total area (m²).
+fn cells_in_region(v: &vtu::Vtu, region: &[f64], i: usize) -> (usize, f64) {
+    let cells: Vec<usize> = (0..v.cells.len())
+        .filter(|&c| region[c] == i as f64)
+        .collect();
+    (cells.len(), cells.iter().map(|&c| v.cell_area(c)).sum())
 }
 
 /// `solve --plot` writes a field picture: an SVG with the |B| shading, flux lines, the
@@ -260,52 +349,68 @@ fn solve_matrix_market_writes_the_assembled_system() {
     );
 }
 
-/// `map.vtu` of a grid probe reads back in the general-purpose VTK reader: one point per
-/// probe point, two triangles per grid cell, its arrays, and the best-orientation EMF at each
-/// mapped point equal to map.json's (points left out of the map, where the pickup does not
-/// fit, read 0 there).
+/// field.vtu of a 50 Hz case (cases/feeder-pair.toml: two solid copper bars of radius
+/// 10 mm at y = ±30 mm carrying ±400 A rms, a ferrite rod 100 × 10 mm centred at x = 150 mm)
+/// reads back with the counts of results.json, the phasor arrays docs/guide.md lists, μr 2000
+/// in exactly the rod's cells, and current densities that add up over each bar's cells to the
+/// current results.json reports for it and the case imposes (Kirchhoff's current law on a
+/// solid conductor: the eddy currents inside it only redistribute the net current).
 #[test]
-fn map_writes_a_readable_map_vtu() {
+fn harmonic_field_vtu_reads_back_with_the_bar_currents() {
     let dir = tempfile::tempdir().unwrap();
-    let out = dir.path().join("map");
-    let o = fluxpick(&[
-        "map",
-        repo().join("cases/busbar-survey.toml").to_str().unwrap(),
-        "--pickup",
-        repo()
-            .join("cases/rod-uniform-field.toml")
-            .to_str()
-            .unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    let rec: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(out.join("map.json")).unwrap()).unwrap();
-    let g = read_vtu(&out.join("map.vtu"));
-    let n = g.num_points();
-    let cells = g.cells.types.len();
-    // a grid of nx × ny points has 2 (nx − 1)(ny − 1) triangles
-    let (nx, ny) = (1..=n)
-        .filter(|nx| n % nx == 0)
-        .map(|nx| (nx, n / nx))
-        .find(|(nx, ny)| 2 * (nx - 1) * (ny - 1) == cells)
-        .expect("a structured grid of triangles");
-    assert!(nx > 1 && ny > 1);
-    let emf = array(&g.data.point, "emf_best_v");
-    for name in ["emf_fixed_v", "power_best_w", "b_major_t", "nonuniform"] {
-        assert_eq!(array(&g.data.point, name).len(), n, "{name}");
-    }
-    let mapped = rec["points"].as_array().unwrap();
-    assert!(!mapped.is_empty());
-    let best = mapped
-        .iter()
-        .map(|p| p["emf_best_v"].as_f64().unwrap())
-        .fold(0.0f64, f64::max);
-    let vtu_best = emf.iter().copied().fold(0.0f64, f64::max);
-    assert!(
-        (vtu_best - best).abs() <= 1e-12 * best,
-        "{vtu_best} vs {best}"
+    let out = dir.path().join("out");
+    let r = solve(&repo().join("cases/feeder-pair.toml"), &out);
+    let v = vtu::read(&out.join("field.vtu"));
+    assert_eq!(v.points.len() as f64, get(&r, "mesh.nodes"));
+    assert_eq!(v.cells.len() as f64, get(&r, "mesh.triangles"));
+    assert!(v.types.iter().all(|t| *t == cell_type(&r)));
+    assert_eq!(
+        v.names(),
+        (
+            vec!["A_im", "A_re"],
+            vec![
+                "B_abs",
+                "B_im",
+                "B_re",
+                "J_abs",
+                "J_im",
+                "J_re",
+                "error_indicator",
+                "mu_r",
+                "region"
+            ]
+        )
     );
-    assert_eq!(emf.iter().filter(|v| **v > 0.0).count(), mapped.len());
+    assert_eq!(v.cell("B_re").components, 3);
+    assert_eq!(v.cell("B_im").components, 3);
+    assert_eq!(v.point("A_re").components, 1);
+
+    // the rod: 100 × 10 mm centred at (150, 0) mm, μr 2000 there and nowhere else
+    let mu = &v.cell("mu_r").values;
+    let (rod, rod_area) = cells_in(&v, |p| (p[0] - 0.15).abs() < 0.05 && p[1].abs() < 5e-3);
+    assert!(rod.iter().all(|&c| mu[c] == 2000.0));
+    assert_eq!(rod.len(), mu.iter().filter(|m| **m == 2000.0).count());
+    assert_rel("rod area in field.vtu", rod_area, 0.1 * 0.01, 1e-9);
+
+    // ∫ J dA over each bar (cell value × the cell's exact area)
+    let (jr, ji) = (&v.cell("J_re").values, &v.cell("J_im").values);
+    for (name, y) in [("go", 0.03), ("return", -0.03)] {
+        let (bar, area) = cells_in(&v, |p| p[0].hypot(p[1] - y) < 0.01);
+        // the mesher keeps the circle's area (curved quadratic sides)
+        assert_rel(&format!("{name} area"), area, PI * 0.01f64.powi(2), 1e-6);
+        let (re, im) = bar.iter().fold((0.0, 0.0), |(a, b), &c| {
+            let da = v.cell_area(c);
+            (a + jr[c] * da, b + ji[c] * da)
+        });
+        // the case: ±400 A at phase 0; results.json reports the signed rms current
+        let imposed = if name == "go" { 400.0 } else { -400.0 };
+        assert_eq!(get(&r, &format!("conductors.{name}.current_a")), imposed);
+        // The cell values are taken at the centroids, so the sums are a one-point rule per
+        // cell: seen here 4e-5 of 400 A off in the in-phase part, 1.2e-3 (0.49 A) in the
+        // quadrature part, which the eddy currents alone make up.
+        assert_rel(&format!("{name}: ∫ J_re dA"), re, imposed, 1e-3);
+        eprintln!("{name}: ∫ J_im dA = {im:.4} A");
+        assert!(im.abs() < 5e-3 * 400.0, "{name}: ∫ J_im dA = {im}");
+    }
+
 }

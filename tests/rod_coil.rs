@@ -39,7 +39,7 @@ mesh_size = 2.5
 }
 
 /// About 12 000 turns on a 35 mm × 200 mm ferrite rod measure 23–28 H (common practice,
-/// no source; docs/references.md "Facts of the trade"): a few tens of henries, asserted 15–40 H.
+/// no source; docs/references.md, "Facts of the trade"): a few tens of henries, asserted 15–40 H.
 #[test]
 fn rod_coil_inductance_is_tens_of_henries() {
     let r = solve_text(&rod_case(300.0, 1e-6));
@@ -49,7 +49,7 @@ fn rod_coil_inductance_is_tens_of_henries() {
 }
 
 /// Open boundary: the same rod in air regions 3× and 10× its length agree within 0.5 %
-/// (docs/physics.md, "Formulations": the answer must not depend on the air-box size).
+/// (docs/physics.md, "Boundaries": the answer must not depend on the air-box size).
 #[test]
 fn open_boundary_figures_do_not_depend_on_air_region_size() {
     let small = solve_text(&rod_case(300.0, 1e-6));

@@ -44,7 +44,7 @@ fn rod_starter_runs_and_is_plausible() {
     let f = get(&r, "frequency_hz");
     let lambda = finite_positive(&r, "coils.pickup.flux_linkage_wb");
     let emf = finite_positive(&r, "coils.pickup.emf_v");
-    // V = jωλ (docs/physics.md, "The figures", Faraday's law for phasors).
+    // V = jωλ (docs/physics.md, Faraday's law for phasors).
     common::assert_rel("EMF = ωλ", emf, 2.0 * PI * f * lambda, 1e-9);
     // Equivalent area = λ / B0 with B0 = 10 µT as the starter says.
     let a_eq = finite_positive(&r, "coils.pickup.equivalent_area_m2");
@@ -138,7 +138,8 @@ fn coaxial_starter_runs_and_is_plausible() {
     // The open receiver links M·I of the driver's 1 A.
     let lambda = get(&r, "coils.receiver.flux_linkage_wb");
     common::assert_rel("λ_rx = M·I", lambda, m12 * 1.0, 1e-6);
-    // Flux and energy routes to the inductance agree (docs/physics.md, "The figures").
+    // Flux and energy routes to the inductance agree (docs/physics.md, "From the field to
+    // the figures").
     let l1e = r["inductance_matrix"]["energy_h"][0][0].as_f64().unwrap();
     common::assert_rel("L1 two routes", l1e, l1, 1e-3);
     finite_positive(&r, "coils.receiver.load_power_w");

@@ -6,7 +6,7 @@ use common::*;
 
 #[test]
 fn reference_formulas_match_published_values() {
-    // Check values from docs/references.md (computed there with scipy/mpmath).
+    // Check values from docs/references.md (computed with scipy/mpmath).
     assert!((osborn_prolate(5.0) - 0.0558210).abs() < 1e-7);
     assert!((osborn_prolate(2.0) - 0.1735640).abs() < 1e-7);
     assert!((maxwell_mutual(0.01, 0.01, 0.01) - 4.940785e-9).abs() < 1e-15);
@@ -27,7 +27,7 @@ fn reference_formulas_match_published_values() {
 }
 
 /// Ampère's law: B = μ0 I r/(2πa²) inside a round wire, μ0 I/(2πr) outside
-/// (docs/references.md "Straight wires": 100 A at 0.1 m gives 200.000 µT).
+/// (docs/references.md, "Straight wires": 100 A at 0.1 m gives 200.000 µT).
 #[test]
 fn round_wire_inside_and_outside_planar() {
     let r = solve_text(
@@ -65,7 +65,8 @@ line = { from = [5, 0], to = [100, 0], points = 20 }
 }
 
 /// A permeable cylinder in a uniform transverse field has a uniform interior field
-/// B_in/B0 = 2μr/(μr + 1) (classical 2D potential solution; docs/references.md: 1.980198 at μr 100).
+/// B_in/B0 = 2μr/(μr + 1) (classical 2D potential solution; docs/references.md: 1.980198 at
+/// μr 100).
 #[test]
 fn permeable_cylinder_in_transverse_field() {
     let r = solve_text(

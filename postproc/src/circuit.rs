@@ -88,7 +88,7 @@ mod tests {
     use super::*;
     use std::f64::consts::TAU;
 
-    /// docs/references.md "Resonance": 28.15 H with 250 nF resonates at 59.99443 Hz.
+    /// docs/references.md, "Resonance": 28.15 H with 250 nF resonates at 59.99443 Hz.
     #[test]
     fn resonance_of_a_rod_coil() {
         let f = resonant_frequency(28.15, 250e-9);

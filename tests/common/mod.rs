@@ -3,6 +3,8 @@
 //! docs/references.md in `reference_formulas_match_published_values`).
 #![allow(dead_code)]
 
+pub mod vtu;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
