@@ -412,5 +412,4 @@ fn harmonic_field_vtu_reads_back_with_the_bar_currents() {
         eprintln!("{name}: ∫ J_im dA = {im:.4} A");
         assert!(im.abs() < 5e-3 * 400.0, "{name}: ∫ J_im dA = {im}");
     }
-
 }

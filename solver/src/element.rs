@@ -1,7 +1,7 @@
 //! Lagrange triangles of first and second order, and the element kernels.
 //!
 //! Kernels are pure functions over fixed-size arrays: node coordinates in, local matrices out.
-//! The weak forms (docs/physics.md, "Formulations"), with w = 1 (planar) or w = 2πr (axisymmetric):
+//! The weak forms (docs/physics.md, "Two formulations in one unknown"), with w = 1 (planar) or w = 2πr (axisymmetric):
 //!
 //! * planar A_z: `∫ ν ∇A·∇v dS`, so the "curl vector" of a basis function is `∇N`;
 //! * axisymmetric A_φ: `∫ ν [∂A/∂z ∂v/∂z + (∂A/∂r + A/r)(∂v/∂r + v/r)] 2πr dS`, so the curl
@@ -272,7 +272,7 @@ mod tests {
         [[0.3, 0.1], [1.2, 0.4], [0.5, 0.9]]
     }
 
-    /// Basis gradients against central finite differences (STYLE.md 10).
+    /// Basis gradients against central finite differences (derivatives are checked against finite differences: common practice, no source).
     fn fd_check<const N: usize, B: Basis<N>>() {
         let g = Geometry::new(tri());
         let l = [0.2, 0.5, 0.3];

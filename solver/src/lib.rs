@@ -1,7 +1,7 @@
 //! fluxpick-solver: finite elements for the magnetic vector potential in planar (A_z) and
 //! axisymmetric (A_φ) cross-sections.
 //!
-//! Weak forms (docs/physics.md, "Formulations"), w = 1 planar, w = 2πr axisymmetric:
+//! Weak forms (docs/physics.md, "Two formulations in one unknown"), w = 1 planar, w = 2πr axisymmetric:
 //! `∫ ν c(A)·c(v) w dS = ∫ J v w dS`, with c(A) = ∇A (planar) or (∂A/∂r + A/r, ∂A/∂z)
 //! (axisymmetric). A uniform applied field enters as a known potential A_b (planar
 //! A_b = B0 × position, axisymmetric A_b = B0 r/2); the unknown is the reaction potential

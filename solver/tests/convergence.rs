@@ -246,7 +246,7 @@ fn axisymmetric_p2_converges_at_orders_3_and_2() {
 }
 
 /// The A/r term is part of the axisymmetric curl: a uniform axial field B_z = B0 has
-/// A = B0 r/2 (docs/physics.md, "Formulations"). With the potential held at B0 r/2 on the box, the solution must
+/// A = B0 r/2 (docs/physics.md, "Sources"). With the potential held at B0 r/2 on the box, the solution must
 /// be exactly that and B_z exactly B0 everywhere (P1 and P2 both represent A ∝ r).
 #[test]
 fn axisymmetric_uniform_field_is_exact() {

@@ -1,7 +1,7 @@
 //! The typed, validated case in SI units, built once from the raw file by
 //! [`crate::case::resolve`]. Lengths are in metres (coordinates too), the planar depth in
 //! metres, angles in degrees (`phase_deg`), B in T rms, currents in A rms, conductivity in S/m.
-//! Axisymmetric coordinates are `[r, z]`. Only these types go downstream (STYLE.md point 6).
+//! Axisymmetric coordinates are `[r, z]`. Only these types go downstream: later stages never see the raw structs.
 
 use std::collections::BTreeMap;
 
