@@ -11,6 +11,13 @@
 //!   recorded in its journal), writes the outputs of the finished points and exits with
 //!   [`EXIT_INTERRUPTED`]. A second signal ends the process at once (the journal holds every
 //!   finished point; `--resume` continues from it).
+//!
+//! SIGTERM is blocked in every thread and taken by a thread of its own with `sigwait`, not by
+//! a handler: METIS (the ordering) installs its own process-wide SIGTERM handler while it
+//! runs (GKlib's error trap, which long-jumps back into METIS), and a SIGTERM delivered then
+//! crashed the process with a segmentation fault (seen in the SIGTERM test of
+//! tests/robustness.rs). [`install`] must therefore run before any other thread starts, so
+//! that every thread inherits the blocked mask.
 
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 
@@ -37,14 +44,50 @@ fn on_signal() {
     }
 }
 
-/// Installs the handler (once per process; later calls do nothing).
+/// Installs the handling (once per process; later calls do nothing). Call it before any
+/// other thread starts (see the module docs).
 pub fn install() {
     static ONCE: std::sync::Once = std::sync::Once::new();
     ONCE.call_once(|| {
+        #[cfg(unix)]
+        take_sigterm_in_a_thread();
         // a failure (another handler installed) leaves the default behaviour: the process
         // dies, and atomic writes still leave no half-written file
         let _ = ctrlc::set_handler(on_signal);
     });
+}
+
+/// Blocks SIGTERM in this thread (and so in every thread started after it) and waits for it
+/// in a thread of its own, which then acts as the signal handler would.
+#[cfg(unix)]
+fn take_sigterm_in_a_thread() {
+    // SAFETY: plain libc calls on a sigset_t owned here; pthread_sigmask changes only this
+    // thread's mask, and sigwait only reads the set.
+    let set = unsafe {
+        let mut set: libc::sigset_t = std::mem::zeroed();
+        libc::sigemptyset(&mut set);
+        libc::sigaddset(&mut set, libc::SIGTERM);
+        if libc::pthread_sigmask(libc::SIG_BLOCK, &set, std::ptr::null_mut()) != 0 {
+            return;
+        }
+        set
+    };
+    let spawned = std::thread::Builder::new()
+        .name("sigterm".into())
+        .spawn(move || loop {
+            let mut sig: libc::c_int = 0;
+            // SAFETY: as above; `set` lives in this closure.
+            if unsafe { libc::sigwait(&set, &mut sig) } == 0 {
+                on_signal();
+            }
+        });
+    if spawned.is_err() {
+        // nobody would take it: unblock, and SIGTERM goes to the handler again
+        // SAFETY: as above.
+        unsafe {
+            libc::pthread_sigmask(libc::SIG_UNBLOCK, &set, std::ptr::null_mut());
+        }
+    }
 }
 
 /// Has an interruption been asked for?

@@ -355,6 +355,8 @@ fn run_fail(e: crate::error::RunError) -> i32 {
 
 /// Runs the CLI on the process arguments; returns the exit status.
 pub fn main() -> i32 {
+    // first: the signal handling must be in place before any other thread starts
+    crate::interrupt::install();
     ui::init_error_rendering();
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -387,7 +389,6 @@ pub fn main() -> i32 {
         Ok(s) => s,
         Err(code) => return code,
     };
-    crate::interrupt::install();
     match execute(cli, &ui, &settings) {
         Ok(()) => 0,
         Err(code) => code,
