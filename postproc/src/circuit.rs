@@ -13,6 +13,25 @@ pub enum Tuning {
     None,
 }
 
+/// A pickup coil seen from its terminals: its open-circuit EMF (phasor, V rms) behind its
+/// resistance (winding + induced losses, Ω) and inductance (H), at angular frequency ω (rad/s).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Source {
+    pub emf: C,
+    pub omega: f64,
+    pub inductance: f64,
+    pub resistance: f64,
+}
+
+/// The tuning capacitor and where it sits: in series with the coil, across its terminals, or
+/// none (`capacitance` is then unused).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Capacitor {
+    pub tuning: Tuning,
+    /// F.
+    pub capacitance: f64,
+}
+
 /// Q = ωL/R.
 pub fn quality_factor(omega: f64, l: f64, r: f64) -> f64 {
     omega * l / r
